@@ -61,3 +61,124 @@ class ElectronicDriver(LoadGroup):
     @property
     def stop_v(self) -> float:
         return self.stop_voltage_v if self.stop_voltage_v is not None else 0.8 * self.start_voltage_v
+
+
+# ---------------------------------------------------------------------------
+# Kernel model (one unit).  Equations:
+#
+#   bridge:     i_br = sgn(v) · max(0, |v| − 2·V_D − v_bus) / R_s        (ideal diodes, drop V_D)
+#   bleeder:    resistive  i_bl = v / R_bl,   R_bl = √2·V_rated / I_bl
+#               constant-current  i_bl = I_bl · clip(v / V_knee, −1, 1)
+#   terminal:   i = i_br + i_bl            (the input capacitor is part of the node capacitance)
+#   bus:        C_bulk · dv_bus/dt = |i_br| − i_conv,
+#               i_conv = P_conv · level / v_bus   while the converter runs
+#   converter:  starts when v_bus ≥ V_start, stops when v_bus ≤ V_stop (hysteresis)
+#   decode:     each half-cycle the driver measures the share c of it during which
+#               |v| > V_sense, and moves its level toward decode(c) (a first-order filter
+#               of FILTER_GAIN per half-cycle); light = level while running.
+# ---------------------------------------------------------------------------
+import math  # noqa: E402
+
+import numba  # noqa: E402
+import numpy as np  # noqa: E402
+
+BRIDGE_DIODE_DROP_V = 0.7       # common practice, no source (silicon rectifier forward drop)
+BLEEDER_KNEE_V = 10.0           # engineering choice: a constant-current bleeder regulates above ~10 V
+SENSE_FRACTION = 0.2            # engineering choice: phase detector threshold, 20 % of the rated peak
+DECODE_LOW = 0.15               # engineering choice: conduction share at which light reaches its minimum
+DECODE_HIGH = 0.90              # engineering choice: conduction share that gives full light
+FILTER_GAIN = 0.3               # engineering choice: ~3 half-cycles to follow a change (≈ 30 ms at 50 Hz)
+
+# parameter vector layout
+_RS, _VDD, _CB, _PCONV, _VSTART, _VSTOP, _BLKIND, _BLPAR, _VSENSE, _MINL, _DIMM = range(11)
+N_PARAMS = 11
+N_STATES = 1
+RUNNING = 1
+
+
+def pack(d: "ElectronicDriver") -> np.ndarray:
+    v_pk = math.sqrt(2.0) * d.rated_voltage_v
+    if d.bleeder_a <= 0:
+        bl_kind, bl_par, p_bleed = 0.0, 0.0, 0.0
+    elif d.bleeder_kind is BleederKind.RESISTIVE:
+        bl_kind, bl_par = 1.0, v_pk / d.bleeder_a
+        p_bleed = d.rated_voltage_v ** 2 / bl_par
+    else:
+        bl_kind, bl_par = 2.0, d.bleeder_a
+        p_bleed = d.bleeder_a * d.rated_voltage_v * 2 * math.sqrt(2) / math.pi  # mean |v| × I_bl
+    p_conv = d.converter_power_w if d.converter_power_w is not None else max(d.rated_power_w - p_bleed, 0.05 * d.rated_power_w)
+    return np.array([d.series_resistance_ohm, 2 * BRIDGE_DIODE_DROP_V, d.bulk_capacitance_f, p_conv,
+                     d.start_voltage_v, d.stop_v, bl_kind, bl_par, SENSE_FRACTION * v_pk,
+                     d.min_light_fraction, 1.0 if d.dimmable else 0.0])
+
+
+@numba.njit(cache=True)
+def _bridge(v, vbus, p):
+    x = abs(v) - p[_VDD] - vbus
+    if x <= 0.0:
+        return 0.0
+    return math.copysign(x / p[_RS], v)
+
+
+@numba.njit(cache=True)
+def unit_current(v, y, xo, p, mode):
+    i = _bridge(v, y[xo], p)
+    k = p[_BLKIND]
+    if k == 1.0:
+        i += v / p[_BLPAR]
+    elif k == 2.0:
+        i += p[_BLPAR] * min(max(v / BLEEDER_KNEE_V, -1.0), 1.0)
+    return i
+
+
+@numba.njit(cache=True)
+def unit_rhs(v, y, xo, p, mode, level, F):
+    vbus = y[xo]
+    i_conv = 0.0
+    if mode & RUNNING:
+        i_conv = p[_PCONV] * level / max(vbus, 1.0)
+    F[xo] = abs(_bridge(v, vbus, p)) - i_conv
+
+
+@numba.njit(cache=True)
+def unit_mass(p, M, xo):
+    M[xo] = p[_CB]
+
+
+@numba.njit(cache=True)
+def unit_guards(v, y, xo, p, mode, g, k):
+    g[k] = abs(v) - p[_VDD] - y[xo]
+    if mode & RUNNING:
+        g[k + 1] = y[xo] - p[_VSTOP]
+    else:
+        g[k + 1] = y[xo] - p[_VSTART]
+    return k + 2
+
+
+@numba.njit(cache=True)
+def unit_mode(v, y, xo, p, mode):
+    vbus = y[xo]
+    if mode & RUNNING:
+        return RUNNING if vbus > p[_VSTOP] else 0
+    return RUNNING if vbus >= p[_VSTART] else 0
+
+
+@numba.njit(cache=True)
+def sense(v, p):
+    """1 while the phase detector sees voltage, else 0."""
+    return 1.0 if abs(v) > p[_VSENSE] else 0.0
+
+
+@numba.njit(cache=True)
+def decoded_level(conduction_share, level, p):
+    """New level after one half-cycle in which the detector saw ``conduction_share``."""
+    if p[_DIMM] == 0.0:
+        return 1.0
+    x = (conduction_share - DECODE_LOW) / (DECODE_HIGH - DECODE_LOW)
+    target = max(p[_MINL], min(1.0, x))
+    return level + FILTER_GAIN * (target - level)
+
+
+@numba.njit(cache=True)
+def unit_light_state(v, y, xo, p, mode, level):
+    return level if (mode & RUNNING) else 0.0

@@ -33,3 +33,62 @@ class ElectronicTransformer(LoadGroup):
         require(0 <= self.start_voltage_v < self.rated_voltage_v, "start_voltage_v", self.start_voltage_v,
                 "V must be below the rated voltage")
         require(self.input_capacitance_f >= 0, "input_capacitance_f", self.input_capacitance_f, "F must not be negative")
+
+
+# ---------------------------------------------------------------------------
+# Kernel model (one unit).  While |v| > V_start (and the lamp load is at least the
+# minimum load) the converter passes the mains power to its lamps, so it looks like a
+# resistance R_eq = V_rated² / P_lamp; below V_start (near each zero) it draws nothing.
+# With lamps below the minimum load it never starts.  The input capacitor is part of
+# the node capacitance.  Light state: instantaneous lamp power / rated lamp power.
+# ---------------------------------------------------------------------------
+import numba  # noqa: E402
+import numpy as np  # noqa: E402
+
+_VSTART, _REQ, _ACTIVE, _VR = range(4)
+N_PARAMS = 4
+N_STATES = 0
+RUNNING = 1
+
+
+def pack(d: ElectronicTransformer) -> np.ndarray:
+    active = 1.0 if d.lamp_power_w >= d.min_load_w and d.lamp_power_w > 0 else 0.0
+    r_eq = d.rated_voltage_v ** 2 / max(d.lamp_power_w, 1e-3)
+    return np.array([d.start_voltage_v, r_eq, active, d.rated_voltage_v])
+
+
+@numba.njit(cache=True)
+def unit_current(v, y, xo, p, mode):
+    if mode & RUNNING:
+        return v / p[_REQ]
+    return 0.0
+
+
+@numba.njit(cache=True)
+def unit_rhs(v, y, xo, p, mode, level, F):
+    pass
+
+
+@numba.njit(cache=True)
+def unit_mass(p, M, xo):
+    pass
+
+
+@numba.njit(cache=True)
+def unit_guards(v, y, xo, p, mode, g, k):
+    g[k] = abs(v) - p[_VSTART]
+    return k + 1
+
+
+@numba.njit(cache=True)
+def unit_mode(v, y, xo, p, mode):
+    if p[_ACTIVE] > 0.0 and abs(v) > p[_VSTART]:
+        return RUNNING
+    return 0
+
+
+@numba.njit(cache=True)
+def unit_light_state(v, y, xo, p, mode, level):
+    if mode & RUNNING:
+        return v * v / (p[_VR] * p[_VR])
+    return 0.0

@@ -135,3 +135,471 @@ class SweepPoint:
     stable: bool
     light_t_s: np.ndarray
     light: np.ndarray
+
+
+# ---------------------------------------------------------------------------
+# Running the kernel
+# ---------------------------------------------------------------------------
+import dataclasses  # noqa: E402
+import math  # noqa: E402
+from typing import Callable, Sequence  # noqa: E402
+
+from loads import driver as _drv  # noqa: E402
+from loads import electronic_transformer as _et  # noqa: E402
+from loads import filament as _fil  # noqa: E402
+from loads import kernel as K  # noqa: E402
+from loads import linear as _lin  # noqa: E402
+from loads import transformer as _tr  # noqa: E402
+from loads.circuit import Circuit  # noqa: E402
+from loads.dimmer import Control, Edge  # noqa: E402
+from loads.errors import InputError  # noqa: E402
+from loads.load import LoadKind  # noqa: E402
+
+# Engineering choice: below ~1 m of cable the terminal node is still defined.
+MIN_NODE_CAPACITANCE_F = 100e-12
+# Engineering choice: triac blocking leakage (~1 µA at 100 V), keeps the dimmer voltage defined.
+OFF_STATE_CONDUCTANCE_S = 1e-8
+CLAMP_RESISTANCE_OHM = 1.0        # engineering choice: slope of the trailing-edge clamp
+EVENT_TOL_S = 2e-8                # engineering choice: events located to 20 ns (≈ 0.0004° at 50 Hz)
+DEFAULT_TOLERANCE = 1e-4          # engineering choice: relative step tolerance (see convergence test)
+STEADY_MAX_CYCLES = 60            # engineering choice: give up looking for a periodic state after this
+
+# Typical efficacy used only to weight lamp groups when adding their light (common
+# practice, no source): filament ~12 lm/W, low-voltage halogen ~16 lm/W, LED ~90 lm/W.
+EFFICACY_LM_W = {LoadKind.FILAMENT: 12.0, LoadKind.MAGNETIC_TRANSFORMER: 16.0,
+                 LoadKind.ELECTRONIC_TRANSFORMER: 16.0, LoadKind.ELECTRONIC_DRIVER: 90.0,
+                 LoadKind.LINEAR: 0.0}
+# Lamp laws (IES_HANDBOOK, from memory): light ∝ V^3.38, power ∝ V^1.54 → light ∝ P^(3.38/1.54).
+LIGHT_POWER_EXPONENT = 3.38 / 1.54
+
+_KIND_CODE = {LoadKind.FILAMENT: K.K_FILAMENT, LoadKind.MAGNETIC_TRANSFORMER: K.K_MAGNETIC,
+              LoadKind.ELECTRONIC_DRIVER: K.K_DRIVER, LoadKind.ELECTRONIC_TRANSFORMER: K.K_ETRANS,
+              LoadKind.LINEAR: K.K_LINEAR}
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class _State:
+    """Everything the kernel needs to continue a run (opaque to callers)."""
+
+    y: np.ndarray
+    s: np.ndarray
+    q: np.ndarray
+    t_s: float
+    signature: tuple
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class _Packed:
+    P: np.ndarray
+    IP: np.ndarray
+    gk: np.ndarray
+    gxo: np.ndarray
+    gpo: np.ndarray
+    gnp: np.ndarray
+    gn: np.ndarray
+    GP: np.ndarray
+    atol: np.ndarray
+    scale: np.ndarray
+    ny: int
+    kinds: tuple
+    signature: tuple
+
+
+def _group_params(load, frequency_hz: float) -> tuple[np.ndarray, int]:
+    kind = load.kind
+    if kind is LoadKind.FILAMENT:
+        return _fil.pack(load), 1
+    if kind is LoadKind.MAGNETIC_TRANSFORMER:
+        return _tr.pack(load, frequency_hz), _tr.N_STATES
+    if kind is LoadKind.ELECTRONIC_DRIVER:
+        return _drv.pack(load), _drv.N_STATES
+    if kind is LoadKind.ELECTRONIC_TRANSFORMER:
+        return _et.pack(load), _et.N_STATES
+    return _lin.pack(load), _lin.n_states(load)
+
+
+def _terminal_capacitance_f(load) -> float:
+    if load.kind is LoadKind.ELECTRONIC_DRIVER:
+        return load.count * load.input_capacitance_f
+    if load.kind is LoadKind.ELECTRONIC_TRANSFORMER:
+        return load.count * load.input_capacitance_f
+    if load.kind is LoadKind.LINEAR:
+        return load.count * load.parallel_capacitance_f
+    return 0.0
+
+
+def pack(circuit: Circuit, *, setting: float | None, firing_angle_deg: float | None,
+         no_firing: bool = False, tolerance: float = DEFAULT_TOLERANCE) -> _Packed:
+    sup, dim = circuit.supply, circuit.dimmer
+    loads = circuit.all_loads
+    if firing_angle_deg is None:
+        s = 1.0 if setting is None else setting
+        alpha_deg = dim.firing_angle_for_setting_deg(s)
+    else:
+        s = None
+        alpha_deg = firing_angle_deg
+    P = np.zeros(K.N_P)
+    P[K.VPK] = sup.peak_v
+    P[K.OMEGA] = sup.omega_rad_s
+    P[K.RS] = sup.source_resistance_ohm
+    P[K.LS] = sup.source_inductance_h
+    # node capacitance at the load terminal: wiring + input capacitors.  Where there is none,
+    # the terminal voltage is algebraic – except when an inductor feeds it (line or choke) and
+    # an inductive load takes it: then two inductors meet at a node with nothing else, and
+    # the floor capacitance keeps the equations well posed (engineering choice).
+    c_node = sup.wiring_capacitance_f + sum(_terminal_capacitance_f(ld) for ld in loads)
+    inductive = any(ld.kind is LoadKind.MAGNETIC_TRANSFORMER or (ld.kind is LoadKind.LINEAR and ld.inductance_h > 0)
+                    for ld in loads)
+    fed_by_inductor = sup.source_inductance_h > 0 or (dim.edge is Edge.LEADING and dim.choke_inductance_h > 0)
+    if c_node < MIN_NODE_CAPACITANCE_F and inductive and fed_by_inductor:
+        c_node = MIN_NODE_CAPACITANCE_F
+    P[K.CB] = c_node
+    P[K.LC] = dim.choke_inductance_h if dim.edge is Edge.LEADING else 0.0
+    P[K.RON] = dim.on_state_resistance_ohm
+    P[K.VTD] = dim.on_state_voltage_v if dim.edge is Edge.LEADING else 0.0
+    P[K.IH] = dim.holding_current_a
+    P[K.ILATCH] = dim.latching_current_a
+    P[K.IGT] = dim.gate_trigger_current_a
+    P[K.GATEW] = dim.gate_window_s
+    P[K.RSN] = dim.snubber_resistance_ohm
+    P[K.CSN] = dim.snubber_capacitance_f
+    rc = dim.rc_diac if dim.control is Control.RC_DIAC else None
+    if rc is not None:
+        s_rc = 1.0 if s is None else min(max(s, 0.0), 1.0)
+        P[K.RT] = rc.fixed_resistance_ohm + (1.0 - s_rc) * rc.variable_resistance_ohm
+        P[K.CT] = rc.timing_capacitance_f
+        P[K.VBOP] = rc.breakover_v
+        P[K.VBON] = rc.breakover_v - rc.asymmetry_v
+        P[K.VONP] = rc.breakover_v - rc.snapback_v
+        P[K.VONN] = rc.breakover_v - rc.asymmetry_v - rc.snapback_v
+        P[K.RG] = rc.gate_resistance_ohm
+        P[K.IDOFF] = rc.diac_off_current_a
+    else:
+        P[K.RT] = 1.0
+        P[K.CT] = 0.0
+        P[K.RG] = 1.0
+    P[K.ISS] = dim.self_supply_a
+    P[K.VCL] = dim.clamp_voltage_v
+    P[K.RCL] = CLAMP_RESISTANCE_OHM
+    P[K.TRIP] = dim.trip_current_a
+    P[K.ALPHA] = math.radians(alpha_deg)
+    P[K.GLEAK] = OFF_STATE_CONDUCTANCE_S
+    P[K.HMAX] = sup.period_s / 200.0
+    P[K.RTOL] = tolerance
+    P[K.EVTOL] = EVENT_TOL_S
+    P[K.EARLY] = EARLY_DROPOUT_DEG
+
+    gk, gxo, gpo, gnp, gn, chunks = [], [], [], [], [], []
+    xo, po = K.N_CORE, 0
+    state_scale = []
+    for ld in loads:
+        p, nx = _group_params(ld, sup.frequency_hz)
+        gk.append(_KIND_CODE[ld.kind])
+        gxo.append(xo)
+        gpo.append(po)
+        gnp.append(len(p))
+        gn.append(float(ld.count))
+        chunks.append(p)
+        xo += nx
+        po += len(p)
+        state_scale += _state_scales(ld, nx, sup)
+    ny = xo
+    IP = np.array([0 if dim.edge is Edge.LEADING else 1, 0 if dim.control is Control.PHASE else 1,
+                   1 if no_firing else 0, len(loads), ny], dtype=np.int64)
+    i_ref = max(sum(ld.count * ld.rated_power_w for ld in loads) / sup.voltage_v, 0.05)
+    scale = np.array([i_ref, i_ref, sup.peak_v, sup.peak_v, sup.peak_v, 50.0] + state_scale)
+    # absolute tolerances: a small share of each unknown's scale, but currents never looser
+    # than a tenth of the holding current (engineering choice: the holding check needs it)
+    atol = tolerance * 0.1 * scale
+    atol[K.IL] = atol[K.ISW] = min(atol[K.IL], 0.01 * dim.holding_current_a)
+    signature = (ny, tuple(gk), tuple(gnp))
+    return _Packed(P=P, IP=IP, gk=np.array(gk, dtype=np.int64), gxo=np.array(gxo, dtype=np.int64),
+                   gpo=np.array(gpo, dtype=np.int64), gnp=np.array(gnp, dtype=np.int64),
+                   gn=np.array(gn), GP=np.concatenate(chunks) if chunks else np.zeros(1),
+                   atol=atol, scale=scale, ny=ny, kinds=tuple(ld.kind for ld in loads),
+                   signature=signature)
+
+
+def _state_scales(ld, nx: int, sup) -> list[float]:
+    if ld.kind is LoadKind.FILAMENT:
+        return [1000.0]
+    if ld.kind is LoadKind.MAGNETIC_TRANSFORMER:
+        return [ld.rated_va / ld.rated_voltage_v, sup.peak_v / sup.omega_rad_s, 1000.0]
+    if ld.kind is LoadKind.ELECTRONIC_DRIVER:
+        return [sup.peak_v]
+    out = []
+    if ld.kind is LoadKind.LINEAR:
+        if ld.inductance_h > 0:
+            out.append(sup.peak_v / ld.resistance_ohm)
+        if ld.series_capacitance_f > 0:
+            out.append(sup.peak_v)
+    return out
+
+
+def _cold_state(circuit: Circuit, pk: _Packed, t0: float) -> _State:
+    y = np.zeros(pk.ny)
+    for g, ld in enumerate(circuit.all_loads):
+        xo = int(pk.gxo[g])
+        if ld.kind is LoadKind.FILAMENT:
+            y[xo] = _fil.initial_temperature_k(ld)
+        elif ld.kind is LoadKind.MAGNETIC_TRANSFORMER:
+            y[xo + 2] = 300.0
+    s = np.zeros(K.N_S + len(pk.gk), dtype=np.int64)
+    q = np.zeros(K.N_Q + 2 * len(pk.gk))
+    q[K.T_FIRE] = np.inf
+    q[K.T_OFF] = np.inf
+    for g in range(len(pk.gk)):
+        q[K.N_Q + 2 * g] = 1.0          # drivers start at full level until they have decoded a half-cycle
+    return _State(y=y, s=s, q=q, t_s=t0, signature=pk.signature)
+
+
+def _run(pk: _Packed, state: _State, cycles: float, samples_per_cycle: int):
+    f = pk.P[K.OMEGA] / (2 * math.pi)
+    period = 1.0 / f
+    t0 = state.t_s
+    t_end = t0 + cycles * period
+    n_samp = int(round(cycles * samples_per_cycle)) + 1
+    dt = period / samples_per_cycle
+    ng = len(pk.gk)
+    out = np.zeros((n_samp, K.N_O0 + 2 * ng))
+    half = period / 2
+    n_half = int(math.ceil((t_end - math.floor(t0 / half + 1e-9) * half) / half - 1e-9)) + 1
+    hc = np.zeros((n_half, K.N_H))
+    hc[:, K.H_FIRE] = np.nan
+    hc[:, K.H_EXT] = np.nan
+    y = state.y.copy()
+    s = state.s.copy()
+    q = state.q.copy()
+    s[K.HCIDX] = 0
+    s[K.FIRE_HC] = -1
+    counters = np.zeros(3, dtype=np.int64)
+    rc = K.run(t0, t_end, y, pk.P, pk.IP, s, q, pk.gk, pk.gxo, pk.gpo, pk.gnp, pk.gn, pk.GP,
+               pk.atol, pk.scale, t0, dt, out, hc, counters)
+    if rc != 0:
+        raise RuntimeError(f"the solver's step size collapsed near t = {t0:.6f} s; please report this circuit")
+    last = int(s[K.HCIDX])
+    # keep only half-cycles that ended inside the run
+    n_done = min(last, n_half)
+    hc = hc[:n_done]
+    end_state = _State(y=y, s=s, q=q, t_s=t_end, signature=pk.signature)
+    return out, hc, end_state, counters
+
+
+def _light_waveforms(circuit: Circuit, pk: _Packed, out: np.ndarray) -> np.ndarray:
+    ng = len(pk.gk)
+    light = np.empty((ng, out.shape[0]))
+    for g, ld in enumerate(circuit.all_loads):
+        x = out[:, K.N_O0 + ng + g]
+        if ld.kind is LoadKind.FILAMENT:
+            light[g] = _fil.light_fraction(x, ld)
+        elif ld.kind is LoadKind.MAGNETIC_TRANSFORMER:
+            light[g] = _fil.light_fraction(x, _tr.secondary_lamp(ld))
+        else:
+            light[g] = x
+    return light
+
+
+def _half_cycles(hc: np.ndarray, t: np.ndarray, light: np.ndarray, kinds) -> HalfCycles:
+    half = np.diff(hc[:, K.H_START]) if len(hc) > 1 else np.array([])
+    starts = hc[:, K.H_START]
+    if len(hc):
+        dur = np.full(len(hc), (starts[1] - starts[0]) if len(hc) > 1 else np.nan)
+        # the first record may be a partial half-cycle (switch-on mid-cycle): its span is
+        # from the run start; use the nominal length for all later ones
+        if len(half):
+            dur[:] = np.median(half)
+    else:
+        dur = np.zeros(0)
+    span = np.where(dur > 0, dur, np.nan)
+    t_first = t[0]
+    eff = np.maximum(starts, t_first)
+    span_eff = np.where(np.isfinite(span), starts + span - eff, np.nan)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        rms_v = np.sqrt(hc[:, K.H_V2] / span_eff)
+        rms_a = np.sqrt(hc[:, K.H_I2] / span_eff)
+        power = hc[:, K.H_VI] / span_eff
+        mean_i = hc[:, K.H_I] / span_eff
+    ng = light.shape[0]
+    lt = np.full((len(hc), ng), np.nan)
+    for j in range(len(hc)):
+        m = (t >= eff[j] - 1e-12) & (t < starts[j] + span[j] - 1e-12) if np.isfinite(span[j]) else np.zeros(len(t), bool)
+        if m.any():
+            seg = light[:, m].mean(axis=1)
+            for g, kind in enumerate(kinds):
+                if kind is LoadKind.ELECTRONIC_TRANSFORMER:
+                    seg[g] = seg[g] ** LIGHT_POWER_EXPONENT
+            lt[j] = seg
+    k = np.round(starts / span) if len(hc) else np.zeros(0)
+    polarity = np.where(k % 2 == 0, 1, -1)
+    return HalfCycles(start_s=starts, polarity=polarity, firing_angle_deg=hc[:, K.H_FIRE],
+                      extinction_angle_deg=hc[:, K.H_EXT], firings=hc[:, K.H_FIRINGS].astype(int),
+                      failed_latches=hc[:, K.H_FAILED].astype(int), early_dropouts=hc[:, K.H_EARLY].astype(int),
+                      time_above_holding_s=hc[:, K.H_ABOVE], peak_current_a=hc[:, K.H_PEAK_SW],
+                      peak_line_current_a=hc[:, K.H_PEAK_LINE], i2t_a2s=hc[:, K.H_I2T],
+                      load_rms_v=rms_v, load_rms_a=rms_a, power_w=power, mean_current_a=mean_i, light=lt)
+
+
+STABLE_ANGLE_DEG = 2.0     # engineering choice: firing angles that wander more than this are unstable
+
+
+def _check_args(setting, firing_angle_deg, cycles, samples_per_cycle) -> None:
+    if setting is not None and firing_angle_deg is not None:
+        raise InputError("give a setting or a firing angle, not both", key="setting")
+    if setting is not None and not (0.0 <= setting <= 1.0):
+        raise InputError(f"{setting!r} is outside 0–1", key="setting")
+    if firing_angle_deg is not None and not (0.0 <= firing_angle_deg <= 180.0):
+        raise InputError(f"{firing_angle_deg!r}° is outside 0–180°", key="firing_angle_deg")
+    if not (isinstance(cycles, (int, float)) and 0 < cycles <= 2000):
+        raise InputError(f"{cycles!r} is not a number of cycles between 1 and 2000", key="cycles")
+    if not (10 <= samples_per_cycle <= 20000):
+        raise InputError(f"{samples_per_cycle!r} is outside 10–20000", key="samples_per_cycle")
+
+
+def _steady(circuit: Circuit, pk: _Packed, t0: float, no_firing: bool) -> _State:
+    """Run until the half-cycles repeat; return the state at a cycle boundary."""
+    st = _cold_state(circuit, pk, t0)
+    # start filaments hot so the thermal transient is short (engineering choice)
+    y = st.y.copy()
+    for g, ld in enumerate(circuit.all_loads):
+        if ld.kind is LoadKind.FILAMENT:
+            y[int(pk.gxo[g])] = ld.operating_temperature_k
+        elif ld.kind is LoadKind.MAGNETIC_TRANSFORMER:
+            y[int(pk.gxo[g]) + 2] = _tr.LAMP_OPERATING_TEMPERATURE_K
+    st = dataclasses.replace(st, y=y)
+    prev = None
+    done = 0
+    while done < STEADY_MAX_CYCLES:
+        out, hc, st, _ = _run(pk, st, 2, 40)
+        done += 2
+        if done == 2:
+            # move each filament to the temperature its measured rms gives (one jump)
+            v_rms = math.sqrt(max(np.mean(hc[-2:, K.H_V2]) / (0.5 / (pk.P[K.OMEGA] / (2 * math.pi))), 0.0))
+            y = st.y.copy()
+            for g, ld in enumerate(circuit.all_loads):
+                if ld.kind is LoadKind.FILAMENT and v_rms > 0.05 * ld.rated_voltage_v:
+                    try:
+                        y[int(pk.gxo[g])] = _fil.steady_temperature_k(ld, min(v_rms, 1.2 * ld.rated_voltage_v))
+                    except (ValueError, InputError):
+                        pass
+            st = dataclasses.replace(st, y=y)
+            continue
+        sig = np.concatenate([hc[-2:, K.H_VI], np.nan_to_num(hc[-2:, K.H_FIRE], nan=-1.0), hc[-2:, K.H_FIRINGS]])
+        if prev is not None:
+            scale = max(np.max(np.abs(prev[:2])), 1e-3)
+            d_pow = np.max(np.abs(sig[:2] - prev[:2])) / scale
+            d_ang = np.max(np.abs(sig[2:4] - prev[2:4]))
+            d_fire = np.max(np.abs(sig[4:] - prev[4:]))
+            if d_pow < 2e-3 and d_ang < 0.05 and d_fire == 0:
+                break
+        prev = sig
+    return st
+
+
+def simulate(circuit: Circuit, *, setting: float | None = None, firing_angle_deg: float | None = None,
+             cycles: int = 10, start: str | Start | object = Start.COLD, switch_on_deg: float = 0.0,
+             no_firing: bool = False, samples_per_cycle: int = 400,
+             tolerance: float = DEFAULT_TOLERANCE) -> SimResult:
+    """Simulate ``circuit`` for ``cycles`` mains cycles (see module docstring)."""
+    _check_args(setting, firing_angle_deg, cycles, samples_per_cycle)
+    if firing_angle_deg is None and setting is None:
+        setting = 1.0
+    pk = pack(circuit, setting=setting, firing_angle_deg=firing_angle_deg, no_firing=no_firing,
+              tolerance=tolerance)
+    period = circuit.supply.period_s
+    t0 = (switch_on_deg % 360.0) / 360.0 * period
+    if isinstance(start, _State):
+        if start.signature != pk.signature:
+            raise InputError("the saved state belongs to a different circuit", key="start")
+        state = start
+    else:
+        mode = Start(start)
+        if mode is Start.COLD:
+            state = _cold_state(circuit, pk, t0)
+        elif mode is Start.STEADY:
+            state = _steady(circuit, pk, t0, no_firing)
+        else:
+            pk_off = pack(circuit, setting=setting, firing_angle_deg=firing_angle_deg, no_firing=True,
+                          tolerance=tolerance)
+            state = _steady(circuit, pk_off, t0, True)
+    out, hc, end, counters = _run(pk, state, cycles, samples_per_cycle)
+    t = state.t_s + np.arange(out.shape[0]) * (period / samples_per_cycle)
+    light = _light_waveforms(circuit, pk, out)
+    ng = len(pk.gk)
+    return SimResult(t_s=t, supply_v=out[:, K.O_E], load_v=out[:, K.O_VB], load_a=out[:, K.O_IL],
+                     dimmer_a=out[:, K.O_ISW], dimmer_v=out[:, K.O_VD],
+                     group_a=out[:, K.N_O0:K.N_O0 + ng].T.copy(), group_light=light,
+                     timing_v=out[:, K.O_VT], half_cycles=_half_cycles(hc, t, light, pk.kinds),
+                     frequency_hz=circuit.supply.frequency_hz, setting=setting,
+                     forced_firing_angle_deg=firing_angle_deg, final_state=end)
+
+
+def reference_light_weights(circuit: Circuit) -> np.ndarray:
+    """Weight of each group's light in the total: count × rated power × typical efficacy."""
+    w = np.array([ld.count * ld.rated_power_w * EFFICACY_LM_W[ld.kind] for ld in circuit.all_loads])
+    return w
+
+
+def sweep(circuit: Circuit, settings: Sequence[float], direction: str = "down", *,
+          cycles_per_point: int = 6, analysed_cycles: int = 3,
+          progress: Callable[[int, int], None] | None = None, cancel=None) -> list[SweepPoint]:
+    """Walk the control range carrying the circuit's state (see module docstring)."""
+    if direction not in ("up", "down"):
+        raise InputError(f"{direction!r} is not up or down", key="direction")
+    if not settings:
+        raise InputError("no settings to sweep", key="settings")
+    for s in settings:
+        _check_args(s, None, cycles_per_point, 400)
+    if not (1 <= analysed_cycles <= cycles_per_point):
+        raise InputError(f"{analysed_cycles!r} must be 1–cycles_per_point", key="analysed_cycles")
+    order = sorted(settings, reverse=(direction == "down"))
+    weights = reference_light_weights(circuit)
+    wsum = weights.sum()
+    state: object = Start.STEADY if direction == "down" else Start.OFF
+    points = []
+    for k, s in enumerate(order):
+        if cancel is not None and cancel.is_set():
+            break
+        res = simulate(circuit, setting=s, cycles=cycles_per_point, start=state, samples_per_cycle=200)
+        state = res.final_state
+        points.append(_sweep_point(res, direction, s, analysed_cycles, weights, wsum))
+        if progress is not None:
+            progress(k + 1, len(order))
+    return points
+
+
+def _sweep_point(res: SimResult, direction: str, setting: float, analysed_cycles: int,
+                 weights: np.ndarray, wsum: float) -> SweepPoint:
+    hc = res.half_cycles
+    sel = slice(len(hc) - 2 * analysed_cycles, len(hc))
+    fire = hc.firing_angle_deg[sel]
+    ext = hc.extinction_angle_deg[sel]
+    fired = np.isfinite(fire)
+    n = len(fire)
+    fire_mean = float(np.mean(fire[fired])) if fired.any() else None
+    cond = ext - fire
+    cond_ok = fired & np.isfinite(cond)
+    cond_mean = float(np.mean(cond[cond_ok])) if cond_ok.any() else None
+    if res.setting is None:
+        pass
+    glight = np.nanmean(hc.light[sel], axis=0) if n else np.zeros(len(weights))
+    glight = np.nan_to_num(glight)
+    total = float(np.dot(weights, glight) / wsum) if wsum > 0 else 0.0
+    t0 = hc.start_s[sel.start] if n else res.t_s[0]
+    m = res.t_s >= t0 - 1e-12
+    light_wave = (weights @ res.group_light[:, m]) / wsum if wsum > 0 else np.zeros(int(m.sum()))
+    per_half_light = hc.light[sel] @ weights / wsum if wsum > 0 else np.zeros(n)
+    spread = float(np.ptp(fire[fired])) if fired.sum() > 1 else 0.0
+    light_var = float(np.ptp(per_half_light) / max(np.mean(per_half_light), 1e-9)) if n else 0.0
+    stable = bool(fired.all() and spread <= STABLE_ANGLE_DEG and int(hc.failed_latches[sel].sum()) == 0
+                  and light_var < 0.1) or bool((~fired).all() and total < 1e-3)
+    return SweepPoint(direction=direction, setting=float(setting), firing_angle_deg=fire_mean,
+                      conduction_angle_deg=cond_mean,
+                      load_rms_v=float(np.sqrt(np.mean(hc.load_rms_v[sel] ** 2))),
+                      load_rms_a=float(np.sqrt(np.mean(hc.load_rms_a[sel] ** 2))),
+                      power_w=float(np.mean(hc.power_w[sel])), light_fraction=total,
+                      group_light=tuple(float(x) for x in glight),
+                      fired_fraction=float(fired.mean()) if n else 0.0,
+                      failed_latches=int(hc.failed_latches[sel].sum()),
+                      early_dropouts=int(hc.early_dropouts[sel].sum()),
+                      refirings=int(np.maximum(hc.firings[sel] - 1, 0).sum()), stable=stable,
+                      light_t_s=res.t_s[m], light=light_wave)

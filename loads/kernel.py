@@ -1,0 +1,869 @@
+"""The circuit integrator: a compiled (numba) TR-BDF2 solver with located events.
+
+The circuit is one loop: supply EMF e(t) behind R_s, L_s → dimmer (switch branch with
+choke L_c; snubber R–C, rc-diac timing branch and two-wire self-supply across it) →
+load terminal b (node capacitance C_b = wiring + input capacitors) → lamp groups →
+neutral.  Unknowns y (index constants below):
+
+    L_s·di_L/dt   = e − R_s·i_L − v_d − v_b                      line current
+    L_c·di_sw/dt  = v_d − V_T·sat(i_sw) − r_T·i_sw   (switch on; algebraic if L_c = 0)
+             0    = i_sw                              (switch off)
+             0    = i_L − i_sw − i_sn − i_t − i_ss − i_clamp − G_leak·v_d   (KCL, dimmer)
+    C_b·dv_b/dt   = i_L − Σ_k n_k·i_k(v_b, x_k)                  load terminal
+    C_sn·dv_sn/dt = i_sn = (v_d − v_sn)/R_sn                     snubber
+    C_t·dv_t/dt   = (v_d − v_t)/R_t − i_diac                     timing capacitor
+    M_k·dx_k/dt   = f_k(v_b, x_k)                                 each load unit's states
+
+i.e. a semi-explicit DAE  M·y' = F(t, y, mode)  with a diagonal, mode-dependent mass M
+(zero rows are algebraic).  Between events every element is smooth, and most are
+linear; switching devices, diode bridges, converter start/stop and core saturation are
+discrete modes whose changes are *events*: guard functions g(y) are watched, a sign
+change inside a step is located by bisection/secant on the step length to within
+EVENT_TOL_S, and the modes are updated exactly there.  Time events (supply zero
+crossings, phase-control gate pulses, trailing-edge turn-off) end steps exactly.
+
+Integration: TR-BDF2 (Bank et al. 1985; one trapezoidal stage to t+γh, one BDF2 stage
+to t+h, γ = 2 − √2), L-stable and second order, with both stages sharing the iteration
+matrix M − d·h·J (d = γ/2); the local error estimate
+    LTE ≈ C·h³·y''' ,  C = (−3γ² + 4γ − 2)/(12(2 − γ)),
+with h³y''' from the second divided difference of F over the three stage points,
+filtered through (M − d·h·J)⁻¹ so stiff components do not force tiny steps.
+After every mode change the algebraic unknowns are made consistent by one backward
+Euler step of 1 ns (fast parasitic modes relax; the
+state advances by that 1 ns, well inside the event tolerance).
+
+Why compiled: a pure-Python step costs tens of microseconds and a mains cycle needs
+hundreds to thousands of steps around the fast switching transients; numba brings a
+step to a few microseconds (see README, Speed).
+"""
+from __future__ import annotations
+
+import math
+
+import numba
+import numpy as np
+
+from loads import driver as _drv
+from loads import electronic_transformer as _et
+from loads import filament as _fil
+from loads import linear as _lin
+from loads import transformer as _tr
+
+# --- unknowns ---------------------------------------------------------------------
+IL, ISW, VD, VB, VSN, VT = range(6)
+N_CORE = 6
+
+# --- circuit parameters P[...] -----------------------------------------------------
+(VPK, OMEGA, RS, LS, CB, LC, RON, VTD, IH, ILATCH, IGT, GATEW, RSN, CSN, RT, CT,
+ VBOP, VBON, VONP, VONN, RG, IDOFF, ISS, VCL, RCL, TRIP, ALPHA, GLEAK, HMAX, RTOL,
+ EVTOL, EARLY, N_P) = range(33)
+
+# --- integer parameters IP[...] ----------------------------------------------------
+EDGE, CONTROL, NOFIRE, NG, NY, N_IP = range(6)
+LEADING, TRAILING = 0, 1
+PHASE, RC_DIAC = 0, 1
+
+# --- discrete state S[...] (ints) ----------------------------------------------------
+SW_ON, GATE, LATCHED, DIAC_ON, DIAC_POL, CLAMP, HCIDX, FIRE_HC, TRIPPED, CPOL, N_S = range(11)
+# followed by one mode per group
+
+# --- discrete state Q[...] (floats) ------------------------------------------------
+GATE_END, T_FIRE, T_OFF, HC_START, N_Q = range(5)
+# followed by (level, sense accumulator) per group
+
+# --- half-cycle record columns -------------------------------------------------------
+(H_START, H_FIRE, H_EXT, H_FIRINGS, H_FAILED, H_EARLY, H_ABOVE, H_PEAK_SW, H_PEAK_LINE,
+ H_I2T, H_V2, H_I2, H_VI, H_I, N_H) = range(15)
+
+# --- output columns -------------------------------------------------------------------
+O_E, O_VB, O_IL, O_ISW, O_VD, O_VT, N_O0 = range(7)
+
+# --- load kinds --------------------------------------------------------------------
+K_FILAMENT, K_MAGNETIC, K_DRIVER, K_ETRANS, K_LINEAR = range(5)
+
+GAMMA = 2.0 - math.sqrt(2.0)
+D_COEF = GAMMA / 2.0
+LTE_C = (-3 * GAMMA ** 2 + 4 * GAMMA - 2) / (12 * (2 - GAMMA))
+# quadrature weights exact for quadratics on nodes 0, γ, 1
+W_G = 1.0 / (6.0 * GAMMA * (1.0 - GAMMA))
+W_1 = 0.5 - GAMMA * W_G
+W_0 = 1.0 - W_G - W_1
+VT_SMOOTH_A = 1e-3    # engineering choice: on-state drop reaches V_T at 1 mA (keeps it continuous through zero)
+SELF_SUPPLY_KNEE_V = 10.0   # engineering choice: a two-wire supply draws its current once ~10 V is across it
+CONSISTENT_STEP_S = 1e-9
+
+
+# --------------------------------------------------------------------------- loads
+@numba.njit(cache=True)
+def _unit_current(kind, v, y, xo, p, mode):
+    if kind == K_FILAMENT:
+        return v / _fil.resistance_ohm(y[xo], p)
+    elif kind == K_MAGNETIC:
+        return _tr.unit_current(v, y, xo, p, mode)
+    elif kind == K_DRIVER:
+        return _drv.unit_current(v, y, xo, p, mode)
+    elif kind == K_ETRANS:
+        return _et.unit_current(v, y, xo, p, mode)
+    return _lin.unit_current(v, y, xo, p, mode)
+
+
+@numba.njit(cache=True)
+def _unit_rhs(kind, v, y, xo, p, mode, level, F):
+    if kind == K_FILAMENT:
+        t = y[xo]
+        r = _fil.resistance_ohm(t, p)
+        F[xo] = _fil.temperature_rate_k_s(t, v * v / r, p)
+    elif kind == K_MAGNETIC:
+        _tr.unit_rhs(v, y, xo, p, mode, level, F)
+    elif kind == K_DRIVER:
+        _drv.unit_rhs(v, y, xo, p, mode, level, F)
+    elif kind == K_ETRANS:
+        _et.unit_rhs(v, y, xo, p, mode, level, F)
+    else:
+        _lin.unit_rhs(v, y, xo, p, mode, level, F)
+
+
+@numba.njit(cache=True)
+def _unit_mass(kind, p, M, xo):
+    if kind == K_FILAMENT:
+        M[xo] = 1.0
+    elif kind == K_MAGNETIC:
+        _tr.unit_mass(p, M, xo)
+    elif kind == K_DRIVER:
+        _drv.unit_mass(p, M, xo)
+    elif kind == K_ETRANS:
+        _et.unit_mass(p, M, xo)
+    else:
+        _lin.unit_mass(p, M, xo)
+
+
+@numba.njit(cache=True)
+def _unit_guards(kind, v, y, xo, p, mode, g, k):
+    if kind == K_MAGNETIC:
+        return _tr.unit_guards(v, y, xo, p, mode, g, k)
+    elif kind == K_DRIVER:
+        return _drv.unit_guards(v, y, xo, p, mode, g, k)
+    elif kind == K_ETRANS:
+        return _et.unit_guards(v, y, xo, p, mode, g, k)
+    return k
+
+
+@numba.njit(cache=True)
+def _unit_mode(kind, v, y, xo, p, mode):
+    if kind == K_MAGNETIC:
+        return _tr.unit_mode(v, y, xo, p, mode)
+    elif kind == K_DRIVER:
+        return _drv.unit_mode(v, y, xo, p, mode)
+    elif kind == K_ETRANS:
+        return _et.unit_mode(v, y, xo, p, mode)
+    return 0
+
+
+@numba.njit(cache=True)
+def _unit_light_state(kind, v, y, xo, p, mode, level):
+    if kind == K_FILAMENT:
+        return y[xo]
+    elif kind == K_MAGNETIC:
+        return _tr.unit_light_state(v, y, xo, p, mode, level)
+    elif kind == K_DRIVER:
+        return _drv.unit_light_state(v, y, xo, p, mode, level)
+    elif kind == K_ETRANS:
+        return _et.unit_light_state(v, y, xo, p, mode, level)
+    return _lin.unit_light_state(v, y, xo, p, mode, level)
+
+
+# --------------------------------------------------------------------------- dimmer
+@numba.njit(cache=True)
+def _diac_current(y, P, S):
+    if S[DIAC_ON] == 0:
+        return 0.0
+    if S[DIAC_POL] > 0:
+        return (y[VT] - P[VONP]) / P[RG]
+    return (y[VT] + P[VONN]) / P[RG]
+
+
+@numba.njit(cache=True)
+def _clamp_current(vd, P, S):
+    c = S[CLAMP]
+    if c == 0:
+        return 0.0
+    return (vd - c * P[VCL]) / P[RCL]
+
+
+# --------------------------------------------------------------------------- system
+@numba.njit(cache=True)
+def residual(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F):
+    """F(t, y) for the current modes (see module docstring)."""
+    e = P[VPK] * math.sin(P[OMEGA] * t)
+    il = y[IL]
+    isw = y[ISW]
+    vd = y[VD]
+    vb = y[VB]
+    F[IL] = e - P[RS] * il - vd - vb
+    if S[SW_ON] != 0:
+        F[ISW] = vd - P[VTD] * min(max(isw / VT_SMOOTH_A, -1.0), 1.0) - P[RON] * isw
+    else:
+        F[ISW] = -isw
+    isn = 0.0
+    if P[CSN] > 0.0:
+        isn = (vd - y[VSN]) / P[RSN]
+        F[VSN] = isn
+    else:
+        F[VSN] = -y[VSN]
+    it = 0.0
+    if IP[CONTROL] == RC_DIAC:
+        it = (vd - y[VT]) / P[RT]
+        F[VT] = it - _diac_current(y, P, S)
+    else:
+        F[VT] = -y[VT]
+    iss = P[ISS] * min(max(vd / SELF_SUPPLY_KNEE_V, -1.0), 1.0)
+    icl = 0.0
+    if IP[EDGE] == TRAILING:
+        icl = _clamp_current(vd, P, S)
+    F[VD] = il - isw - isn - it - iss - icl - P[GLEAK] * vd
+    itot = 0.0
+    for g in range(IP[NG]):
+        p = GP[gpo[g]:gpo[g] + gnp[g]]
+        mode = S[N_S + g]
+        itot += gn[g] * _unit_current(gk[g], vb, y, gxo[g], p, mode)
+        _unit_rhs(gk[g], vb, y, gxo[g], p, mode, Q[N_Q + 2 * g], F)
+    F[VB] = il - itot
+
+
+@numba.njit(cache=True)
+def mass(P, IP, S, gk, gxo, gpo, gnp, GP, M):
+    M[IL] = P[LS]
+    M[ISW] = P[LC] if (S[SW_ON] != 0 and P[LC] > 0.0) else 0.0
+    M[VD] = 0.0
+    M[VB] = P[CB]
+    M[VSN] = P[CSN]
+    M[VT] = P[CT] if IP[CONTROL] == RC_DIAC else 0.0
+    for g in range(IP[NG]):
+        _unit_mass(gk[g], GP[gpo[g]:gpo[g] + gnp[g]], M, gxo[g])
+
+
+@numba.njit(cache=True)
+def guards(y, P, IP, S, gk, gxo, gpo, gnp, GP, g):
+    """Functions whose sign change is a mode change; returns how many were written."""
+    k = 0
+    isw = abs(y[ISW])
+    if IP[EDGE] == LEADING:
+        if S[SW_ON] != 0:
+            # signed in the conduction direction, so a current that swings through zero
+            # inside one step is still seen to fall below the threshold
+            ic = S[CPOL] * y[ISW]
+            if S[GATE] != 0 and S[LATCHED] == 0:
+                g[k] = abs(y[ISW]) - P[ILATCH]
+                k += 1
+            if S[GATE] == 0 and S[LATCHED] != 0:
+                g[k] = ic - P[IH]
+                k += 1
+        if IP[CONTROL] == RC_DIAC:
+            if S[DIAC_ON] == 0:
+                g[k] = y[VT] - P[VBOP]
+                g[k + 1] = -y[VT] - P[VBON]
+                k += 2
+            else:
+                idi = abs(_diac_current(y, P, S))
+                g[k] = idi - P[IGT]
+                g[k + 1] = idi - P[IDOFF]
+                k += 2
+    else:
+        if S[SW_ON] != 0:
+            g[k] = isw - P[TRIP]
+            k += 1
+        g[k] = abs(y[VD]) - P[VCL]
+        k += 1
+    vb = y[VB]
+    for j in range(IP[NG]):
+        k = _unit_guards(gk[j], vb, y, gxo[j], GP[gpo[j]:gpo[j] + gnp[j]], S[N_S + j], g, k)
+    return k
+
+
+@numba.njit(cache=True)
+def outputs(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o):
+    o[O_E] = P[VPK] * math.sin(P[OMEGA] * t)
+    o[O_VB] = y[VB]
+    o[O_IL] = y[IL]
+    o[O_ISW] = y[ISW]
+    o[O_VD] = y[VD]
+    o[O_VT] = y[VT]
+    ng = IP[NG]
+    vb = y[VB]
+    for g in range(ng):
+        p = GP[gpo[g]:gpo[g] + gnp[g]]
+        mode = S[N_S + g]
+        o[N_O0 + g] = gn[g] * _unit_current(gk[g], vb, y, gxo[g], p, mode)
+        o[N_O0 + ng + g] = _unit_light_state(gk[g], vb, y, gxo[g], p, mode, Q[N_Q + 2 * g])
+
+
+# --------------------------------------------------------------------------- linear algebra
+@numba.njit(cache=True)
+def lu_factor(A, piv):
+    n = A.shape[0]
+    for k in range(n):
+        m = k
+        big = abs(A[k, k])
+        for i in range(k + 1, n):
+            if abs(A[i, k]) > big:
+                big = abs(A[i, k])
+                m = i
+        piv[k] = m
+        if big == 0.0:
+            return False
+        if m != k:
+            for j in range(n):
+                tmp = A[k, j]
+                A[k, j] = A[m, j]
+                A[m, j] = tmp
+        inv = 1.0 / A[k, k]
+        for i in range(k + 1, n):
+            A[i, k] *= inv
+            f = A[i, k]
+            if f != 0.0:
+                for j in range(k + 1, n):
+                    A[i, j] -= f * A[k, j]
+    return True
+
+
+@numba.njit(cache=True)
+def lu_solve(A, piv, b):
+    n = A.shape[0]
+    for k in range(n):
+        m = piv[k]
+        if m != k:
+            tmp = b[k]
+            b[k] = b[m]
+            b[m] = tmp
+    for i in range(n):
+        s = b[i]
+        for j in range(i):
+            s -= A[i, j] * b[j]
+        b[i] = s
+    for i in range(n - 1, -1, -1):
+        s = b[i]
+        for j in range(i + 1, n):
+            s -= A[i, j] * b[j]
+        b[i] = s / A[i, i]
+
+
+# --------------------------------------------------------------------------- integrator
+@numba.njit(cache=True)
+def jacobian(t, y, F0, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F1):
+    n = y.shape[0]
+    for j in range(n):
+        work[:] = y
+        dy = 1e-7 * max(abs(y[j]), scale[j])
+        work[j] += dy
+        residual(t, work, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F1)
+        for i in range(n):
+            J[i, j] = (F1[i] - F0[i]) / dy
+
+
+@numba.njit(cache=True)
+def newton(t, z, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G):
+    """Solve M·z − c·F(t, z) = rhs with the factored iteration matrix A = M − c·J."""
+    n = z.shape[0]
+    for it in range(10):
+        residual(t, z, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F)
+        for i in range(n):
+            G[i] = M[i] * z[i] - c * F[i] - rhs[i]
+        lu_solve(A, piv, G)
+        nrm = 0.0
+        for i in range(n):
+            z[i] -= G[i]
+            r = G[i] * wt[i]
+            nrm += r * r
+        nrm = math.sqrt(nrm / n)
+        if nrm < 1e-3:
+            residual(t, z, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F)
+            return True
+        if not np.isfinite(nrm):
+            return False
+    return False
+
+
+@numba.njit(cache=True)
+def make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F, G, work, F1, rhs):
+    """Satisfy the algebraic rows after a mode change (backward-Euler steps of 1 ns)."""
+    n = y.shape[0]
+    mass(P, IP, S, gk, gxo, gpo, gnp, GP, M)
+    for _ in range(3):
+        residual(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F)
+        jacobian(t, y, F, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F1)
+        c = CONSISTENT_STEP_S
+        for i in range(n):
+            for j in range(n):
+                A[i, j] = -c * J[i, j]
+            A[i, i] += M[i]
+            rhs[i] = M[i] * y[i]
+        if not lu_factor(A, piv):
+            return False
+        if newton(t, y, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G):
+            return True
+    return False
+
+
+@numba.njit(cache=True)
+def trbdf2_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
+                yg, y1, Fg, F1, A, piv, G, rhs, est):
+    """One TR-BDF2 step from (t, y); returns the weighted error norm (inf: failed)."""
+    n = y.shape[0]
+    c = D_COEF * h
+    for i in range(n):
+        for j in range(n):
+            A[i, j] = -c * J[i, j]
+        A[i, i] += M[i]
+    if not lu_factor(A, piv):
+        return np.inf
+    wt = est  # reuse as weights for the Newton norm
+    for i in range(n):
+        wt[i] = 1.0 / (atol[i] + P[RTOL] * abs(y[i]))
+    # trapezoidal stage to t + γh
+    for i in range(n):
+        if M[i] != 0.0:
+            rhs[i] = M[i] * y[i] + c * F0[i]
+        else:
+            rhs[i] = 0.0
+        yg[i] = y[i] + GAMMA * h * (F0[i] / M[i] if M[i] != 0.0 else 0.0)
+    if not newton(t + GAMMA * h, yg, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, Fg, G):
+        return np.inf
+    # BDF2 stage to t + h
+    a1 = 1.0 / (GAMMA * (2.0 - GAMMA))
+    a0 = (1.0 - GAMMA) ** 2 / (GAMMA * (2.0 - GAMMA))
+    for i in range(n):
+        rhs[i] = M[i] * (a1 * yg[i] - a0 * y[i])
+        y1[i] = yg[i] + (yg[i] - y[i]) * (1.0 - GAMMA) / GAMMA
+    if not newton(t + h, y1, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F1, G):
+        return np.inf
+    # error estimate, filtered through the iteration matrix
+    for i in range(n):
+        if M[i] != 0.0:
+            est[i] = LTE_C * 2.0 * h * (F0[i] / GAMMA - Fg[i] / (GAMMA * (1.0 - GAMMA)) + F1[i] / (1.0 - GAMMA))
+        else:
+            est[i] = 0.0
+    lu_solve(A, piv, est)
+    # error test on the differential unknowns only (algebraic ones follow from them)
+    err = 0.0
+    nd = 0
+    for i in range(n):
+        if M[i] != 0.0:
+            r = est[i] / (atol[i] + P[RTOL] * max(abs(y[i]), abs(y1[i])))
+            err += r * r
+            nd += 1
+    err = math.sqrt(err / max(nd, 1))
+    if not np.isfinite(err):
+        return np.inf
+    return err
+
+
+# --------------------------------------------------------------------------- events
+@numba.njit(cache=True)
+def _angle_deg(t, t0, P):
+    return (t - t0) * P[OMEGA] * 180.0 / math.pi
+
+
+@numba.njit(cache=True)
+def _record_firing(t, S, Q, HC, P):
+    h = S[HCIDX]
+    if h < HC.shape[0]:
+        if np.isnan(HC[h, H_FIRE]):
+            HC[h, H_FIRE] = _angle_deg(t, Q[HC_START], P)
+        HC[h, H_FIRINGS] += 1.0
+    S[FIRE_HC] = h
+
+
+@numba.njit(cache=True)
+def _record_off(t, S, Q, HC, P, chop, y):
+    """The switch stops conducting at t; chop cuts the choke's and line's switch current."""
+    f = S[FIRE_HC]
+    if 0 <= f < HC.shape[0]:
+        HC[f, H_EXT] = _angle_deg(t, HC[f, H_START], P)
+    h = S[HCIDX]
+    if h == f and h < HC.shape[0]:
+        if _angle_deg(t, Q[HC_START], P) < 180.0 - P[EARLY]:
+            HC[h, H_EARLY] += 1.0
+    if chop:
+        y[IL] -= y[ISW]
+        y[ISW] = 0.0
+    S[SW_ON] = 0
+    S[LATCHED] = 0
+
+
+@numba.njit(cache=True)
+def _series_current_index(kind, p, xo):
+    """Index of a unit's inductive terminal-current state, or −1."""
+    if kind == K_MAGNETIC:
+        return xo
+    if kind == K_LINEAR and p[_lin._L] > 0.0:
+        return xo
+    return -1
+
+
+@numba.njit(cache=True)
+def _chop_loads(y, cut, IP, gk, gxo, gpo, gnp, gn, GP):
+    """A leading-edge switch opening at I_H also cuts the (≤ I_H) current of inductive
+    loads in series with it; their energy ½·L·I_H² is dropped, as the choke's is."""
+    tot = 0.0
+    for g in range(IP[NG]):
+        idx = _series_current_index(gk[g], GP[gpo[g]:gpo[g] + gnp[g]], gxo[g])
+        if idx >= 0:
+            tot += gn[g] * y[idx]
+    if tot == 0.0:
+        return
+    f = min(max(1.0 - cut / tot, 0.0), 1.0)
+    for g in range(IP[NG]):
+        idx = _series_current_index(gk[g], GP[gpo[g]:gpo[g] + gnp[g]], gxo[g])
+        if idx >= 0:
+            y[idx] *= f
+
+
+@numba.njit(cache=True)
+def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
+    """Bring the discrete state in line with y at t; returns True if anything changed."""
+    any_change = False
+    for _ in range(6):
+        changed = False
+        if IP[EDGE] == LEADING:
+            if IP[CONTROL] == RC_DIAC:
+                if S[DIAC_ON] == 0:
+                    if y[VT] >= P[VBOP]:
+                        S[DIAC_ON] = 1
+                        S[DIAC_POL] = 1
+                        changed = True
+                    elif -y[VT] >= P[VBON]:
+                        S[DIAC_ON] = 1
+                        S[DIAC_POL] = -1
+                        changed = True
+                else:
+                    if S[DIAC_POL] * _diac_current(y, P, S) < P[IDOFF]:
+                        S[DIAC_ON] = 0
+                        changed = True
+                gate_now = 1 if (S[DIAC_ON] != 0 and abs(_diac_current(y, P, S)) >= P[IGT]) else 0
+                if gate_now != S[GATE]:
+                    S[GATE] = gate_now
+                    changed = True
+                    if gate_now != 0 and IP[NOFIRE] == 0:
+                        if S[SW_ON] == 0:
+                            S[SW_ON] = 1
+                            S[LATCHED] = 0
+                        _record_firing(t, S, Q, HC, P)
+            if S[SW_ON] != 0:
+                if S[GATE] != 0 and S[LATCHED] == 0 and abs(y[ISW]) >= P[ILATCH]:
+                    S[LATCHED] = 1
+                    S[CPOL] = 1 if y[ISW] > 0.0 else -1
+                    changed = True
+                if S[GATE] == 0:
+                    if S[LATCHED] == 0:
+                        h = S[HCIDX]
+                        if h < HC.shape[0]:
+                            HC[h, H_FAILED] += 1.0
+                        _chop_loads(y, y[ISW], IP, gk, gxo, gpo, gnp, gn, GP)
+                        _record_off(t, S, Q, HC, P, True, y)
+                        changed = True
+                    elif S[CPOL] * y[ISW] < P[IH]:
+                        _chop_loads(y, y[ISW], IP, gk, gxo, gpo, gnp, gn, GP)
+                        _record_off(t, S, Q, HC, P, True, y)
+                        changed = True
+        else:
+            if S[SW_ON] != 0 and abs(y[ISW]) >= P[TRIP]:
+                S[TRIPPED] = 1
+                _record_off(t, S, Q, HC, P, False, y)
+                changed = True
+            c = 0
+            if y[VD] > P[VCL]:
+                c = 1
+            elif y[VD] < -P[VCL]:
+                c = -1
+            if c != S[CLAMP]:
+                S[CLAMP] = c
+                changed = True
+        vb = y[VB]
+        for g in range(IP[NG]):
+            m = _unit_mode(gk[g], vb, y, gxo[g], GP[gpo[g]:gpo[g] + gnp[g]], S[N_S + g])
+            if m != S[N_S + g]:
+                S[N_S + g] = m
+                changed = True
+        if not changed:
+            break
+        any_change = True
+    return any_change
+
+
+@numba.njit(cache=True)
+def _start_half_cycle(t, P, IP, S, Q, HC):
+    h = S[HCIDX]
+    if h < HC.shape[0]:
+        HC[h, H_START] = t
+    Q[HC_START] = t
+    S[TRIPPED] = 0
+    half = math.pi / P[OMEGA]
+    alpha_t = P[ALPHA] / P[OMEGA]
+    if IP[EDGE] == LEADING and IP[CONTROL] == PHASE:
+        Q[T_FIRE] = t + alpha_t if IP[NOFIRE] == 0 else np.inf
+    else:
+        Q[T_FIRE] = np.inf
+    if IP[EDGE] == TRAILING:
+        Q[T_OFF] = t + half - alpha_t if IP[NOFIRE] == 0 else np.inf
+    else:
+        Q[T_OFF] = np.inf
+
+
+@numba.njit(cache=True)
+def _end_half_cycle(P, IP, S, Q, gk, gpo, gnp, GP):
+    """Driver phase decoders update once per half-cycle."""
+    half = math.pi / P[OMEGA]
+    for g in range(IP[NG]):
+        if gk[g] == K_DRIVER:
+            share = Q[N_Q + 2 * g + 1] / half
+            Q[N_Q + 2 * g] = _drv.decoded_level(share, Q[N_Q + 2 * g], GP[gpo[g]:gpo[g] + gnp[g]])
+            Q[N_Q + 2 * g + 1] = 0.0
+
+
+@numba.njit(cache=True)
+def _accumulate(h, o0, og, o1, P, IP, S, Q, HC, gk, gpo, gnp, GP):
+    k = S[HCIDX]
+    if k >= HC.shape[0]:
+        return
+    HC[k, H_V2] += h * (W_0 * o0[O_VB] ** 2 + W_G * og[O_VB] ** 2 + W_1 * o1[O_VB] ** 2)
+    HC[k, H_I2] += h * (W_0 * o0[O_IL] ** 2 + W_G * og[O_IL] ** 2 + W_1 * o1[O_IL] ** 2)
+    HC[k, H_VI] += h * (W_0 * o0[O_VB] * o0[O_IL] + W_G * og[O_VB] * og[O_IL] + W_1 * o1[O_VB] * o1[O_IL])
+    HC[k, H_I2T] += h * (W_0 * o0[O_ISW] ** 2 + W_G * og[O_ISW] ** 2 + W_1 * o1[O_ISW] ** 2)
+    HC[k, H_I] += h * (W_0 * o0[O_IL] + W_G * og[O_IL] + W_1 * o1[O_IL])
+    for a in (o0, og, o1):
+        if abs(a[O_ISW]) > HC[k, H_PEAK_SW]:
+            HC[k, H_PEAK_SW] = abs(a[O_ISW])
+        if abs(a[O_IL]) > HC[k, H_PEAK_LINE]:
+            HC[k, H_PEAK_LINE] = abs(a[O_IL])
+    if S[SW_ON] != 0:
+        HC[k, H_ABOVE] += h * _share_above(abs(o0[O_ISW]), abs(og[O_ISW]), abs(o1[O_ISW]), P[IH])
+    for g in range(IP[NG]):
+        if gk[g] == K_DRIVER:
+            thr = GP[gpo[g] + _drv._VSENSE]
+            Q[N_Q + 2 * g + 1] += h * _share_above(abs(o0[O_VB]), abs(og[O_VB]), abs(o1[O_VB]), thr)
+
+
+@numba.njit(cache=True)
+def _share_above(a0, ag, a1, level):
+    """Share of a step during which a piecewise-linear a(t) through 0, γ, 1 is ≥ level."""
+    return GAMMA * _seg_above(a0, ag, level) + (1.0 - GAMMA) * _seg_above(ag, a1, level)
+
+
+@numba.njit(cache=True)
+def _seg_above(a, b, level):
+    if a >= level and b >= level:
+        return 1.0
+    if a < level and b < level:
+        return 0.0
+    x = (level - a) / (b - a)
+    return 1.0 - x if b >= level else x
+
+
+@numba.njit(cache=True)
+def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
+        t_samp0, dt_samp, OUT, HC, counters):
+    """Integrate from t0 to t_end, updating y, S, Q in place; fill OUT and HC.
+
+    OUT[k] holds the outputs at t_samp0 + k·dt_samp; HC[j] the figures of the j-th
+    half-cycle (S[HCIDX] is the index of the current one on entry).  counters[0] gets the
+    accepted steps, counters[1] the rejected ones, counters[2] the located events.
+    Returns 0 on success, 1 if the step size collapsed."""
+    n = y.shape[0]
+    no = OUT.shape[1]
+    M = np.zeros(n)
+    J = np.zeros((n, n))
+    A = np.zeros((n, n))
+    piv = np.zeros(n, dtype=np.int64)
+    F0 = np.zeros(n)
+    Fg = np.zeros(n)
+    F1 = np.zeros(n)
+    G = np.zeros(n)
+    rhs = np.zeros(n)
+    est = np.zeros(n)
+    work = np.zeros(n)
+    yg = np.zeros(n)
+    y1 = np.zeros(n)
+    ytry = np.zeros(n)
+    wt = np.zeros(n)
+    g0 = np.zeros(64)
+    g1 = np.zeros(64)
+    o0 = np.zeros(no)
+    og = np.zeros(no)
+    o1 = np.zeros(no)
+    half = math.pi / P[OMEGA]
+    for i in range(n):
+        wt[i] = 1.0 / (atol[i] + P[RTOL] * abs(y[i]))
+
+    t = t0
+    k_hb = math.floor(t / half + 1e-9)
+    t_hb = (k_hb + 1) * half
+    if abs(t - k_hb * half) < 1e-12:
+        _start_half_cycle(t, P, IP, S, Q, HC)
+        if IP[EDGE] == TRAILING and IP[NOFIRE] == 0:
+            S[SW_ON] = 1
+            _record_firing(t, S, Q, HC, P)
+    else:
+        Q[HC_START] = k_hb * half
+        if S[HCIDX] < HC.shape[0]:
+            HC[S[HCIDX], H_START] = k_hb * half
+        if IP[EDGE] == LEADING and IP[CONTROL] == PHASE and IP[NOFIRE] == 0:
+            tf = k_hb * half + P[ALPHA] / P[OMEGA]
+            Q[T_FIRE] = tf if tf > t else np.inf
+        if IP[EDGE] == TRAILING and IP[NOFIRE] == 0:
+            to = (k_hb + 1) * half - P[ALPHA] / P[OMEGA]
+            Q[T_OFF] = to if to > t else np.inf
+            S[SW_ON] = 1 if to > t else 0
+    for _ in range(5):
+        update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP)
+        make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F0, G, work, F1, rhs)
+        if not update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
+            break
+    outputs(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o0)
+    ks = 0
+    while ks < OUT.shape[0] and t_samp0 + ks * dt_samp <= t + 1e-15:
+        OUT[ks, :] = o0
+        ks += 1
+    h = 1e-7
+    fresh = True
+    while t < t_end - 1e-13:
+        # next time event
+        t_ev = min(t_hb, t_end)
+        if S[GATE] != 0 and IP[CONTROL] == PHASE:
+            t_ev = min(t_ev, Q[GATE_END])
+        if Q[T_FIRE] > t:
+            t_ev = min(t_ev, Q[T_FIRE])
+        if Q[T_OFF] > t:
+            t_ev = min(t_ev, Q[T_OFF])
+        h = min(h, P[HMAX], t_ev - t)
+        if h < 1e-13:
+            h = t_ev - t
+        mass(P, IP, S, gk, gxo, gpo, gnp, GP, M)
+        residual(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F0)
+        jacobian(t, y, F0, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F1)
+        ng0 = guards(y, P, IP, S, gk, gxo, gpo, gnp, GP, g0)
+        if fresh:
+            outputs(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o0)
+            fresh = False
+        # attempt steps until one is accepted
+        while True:
+            err = trbdf2_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
+                              yg, y1, Fg, F1, A, piv, G, rhs, est)
+            if err <= 1.0:
+                break
+            counters[1] += 1
+            if np.isinf(err):
+                h *= 0.25
+            else:
+                h *= max(0.2, 0.9 * err ** (-1.0 / 3.0))
+            if h < 1e-12:
+                return 1
+        fac = 2.0 if err < 1e-6 else min(2.0, 0.9 * err ** (-1.0 / 3.0))
+        # located events: did any guard change sign?
+        guards(y1, P, IP, S, gk, gxo, gpo, gnp, GP, g1)
+        crossed = False
+        for i in range(ng0):
+            if (g0[i] < 0.0) != (g1[i] < 0.0):
+                crossed = True
+                break
+        if crossed:
+            lo = 0.0
+            hi = h
+            glo = g0.copy()
+            ghi = g1.copy()
+            ytry[:] = y1
+            yhi = y1.copy()
+            yghi = yg.copy()
+            while hi - lo > P[EVTOL]:
+                # earliest crossing estimate by linear interpolation of each guard
+                frac = 1.0
+                for i in range(ng0):
+                    if (glo[i] < 0.0) != (ghi[i] < 0.0):
+                        f = glo[i] / (glo[i] - ghi[i])
+                        if f < frac:
+                            frac = f
+                hm = lo + (hi - lo) * min(max(frac, 0.05), 0.95)
+                hm = min(hm + 0.25 * P[EVTOL], hi - 0.25 * P[EVTOL]) if hi - lo > P[EVTOL] else hm
+                err2 = trbdf2_step(t, hm, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
+                                   yg, ytry, Fg, F1, A, piv, G, rhs, est)
+                if np.isinf(err2):
+                    return 1
+                gm = np.zeros(64)
+                guards(ytry, P, IP, S, gk, gxo, gpo, gnp, GP, gm)
+                any_c = False
+                for i in range(ng0):
+                    if (g0[i] < 0.0) != (gm[i] < 0.0):
+                        any_c = True
+                        break
+                if any_c:
+                    hi = hm
+                    ghi[:] = gm
+                    yhi[:] = ytry
+                    yghi[:] = yg
+                else:
+                    lo = hm
+                    glo[:] = gm
+            h = hi
+            y1[:] = yhi
+            yg[:] = yghi
+            counters[2] += 1
+        # accept the step [t, t + h]
+        outputs(t + GAMMA * h, yg, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, og)
+        outputs(t + h, y1, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o1)
+        _accumulate(h, o0, og, o1, P, IP, S, Q, HC, gk, gpo, gnp, GP)
+        while ks < OUT.shape[0] and t_samp0 + ks * dt_samp <= t + h + 1e-15:
+            x = (t_samp0 + ks * dt_samp - t) / h
+            # quadratic through (0, o0), (γ, og), (1, o1)
+            l0 = (x - GAMMA) * (x - 1.0) / GAMMA
+            lg = x * (x - 1.0) / (GAMMA * (GAMMA - 1.0))
+            l1 = x * (x - GAMMA) / (1.0 - GAMMA)
+            for c in range(no):
+                OUT[ks, c] = l0 * o0[c] + lg * og[c] + l1 * o1[c]
+            ks += 1
+        t = t + h
+        y[:] = y1
+        o0[:] = o1
+        counters[0] += 1
+        event = crossed
+        # time events
+        if abs(t - Q[T_FIRE]) < 1e-12:
+            Q[T_FIRE] = np.inf
+            S[SW_ON] = 1
+            S[GATE] = 1
+            S[LATCHED] = 0 if abs(y[ISW]) < P[ILATCH] else 1
+            S[CPOL] = 1 if y[ISW] > 0.0 else -1
+            Q[GATE_END] = t + P[GATEW]
+            _record_firing(t, S, Q, HC, P)
+            event = True
+        if IP[CONTROL] == PHASE and IP[EDGE] == LEADING and S[GATE] != 0 and abs(t - Q[GATE_END]) < 1e-12:
+            S[GATE] = 0
+            event = True
+        if abs(t - Q[T_OFF]) < 1e-12:
+            Q[T_OFF] = np.inf
+            if S[SW_ON] != 0:
+                _record_off(t, S, Q, HC, P, False, y)
+            event = True
+        if abs(t - t_hb) < 1e-12:
+            _end_half_cycle(P, IP, S, Q, gk, gpo, gnp, GP)
+            S[HCIDX] += 1
+            _start_half_cycle(t, P, IP, S, Q, HC)
+            if IP[EDGE] == TRAILING and IP[NOFIRE] == 0 and S[SW_ON] == 0:
+                S[SW_ON] = 1
+                S[FIRE_HC] = S[HCIDX]
+                _record_firing(t, S, Q, HC, P)
+            t_hb += half
+            event = True
+        if event:
+            for _ in range(5):
+                update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP)
+                make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv,
+                                F0, G, work, F1, rhs)
+                if not update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
+                    break
+            fresh = True
+            h = min(h * fac, 2e-7) if crossed or h < 1e-6 else min(h * fac, 1e-6)
+        else:
+            h = h * fac
+    while ks < OUT.shape[0]:
+        OUT[ks, :] = o0
+        ks += 1
+    return 0
