@@ -91,10 +91,11 @@ W_0 = 1.0 - W_G - W_1
 VT_SMOOTH_A = 1e-3    # engineering choice: on-state drop reaches V_T at 1 mA (keeps it continuous through zero)
 SELF_SUPPLY_KNEE_V = 10.0   # engineering choice: a two-wire supply draws its current once ~10 V is across it
 CONSISTENT_STEP_S = 1e-9
+JAC_AGE = 8            # engineering choice: steps between Jacobian refreshes
 
 
 # --------------------------------------------------------------------------- loads
-@numba.njit(cache=True)
+@numba.njit(cache=True, inline='always')
 def _unit_current(kind, v, y, xo, p, mode):
     if kind == K_FILAMENT:
         return v / _fil.resistance_ohm(y[xo], p)
@@ -107,7 +108,7 @@ def _unit_current(kind, v, y, xo, p, mode):
     return _lin.unit_current(v, y, xo, p, mode)
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, inline='always')
 def _unit_rhs(kind, v, y, xo, p, mode, level, F):
     if kind == K_FILAMENT:
         t = y[xo]
@@ -123,7 +124,7 @@ def _unit_rhs(kind, v, y, xo, p, mode, level, F):
         _lin.unit_rhs(v, y, xo, p, mode, level, F)
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, inline='always')
 def _unit_mass(kind, p, M, xo):
     if kind == K_FILAMENT:
         M[xo] = 1.0
@@ -137,7 +138,7 @@ def _unit_mass(kind, p, M, xo):
         _lin.unit_mass(p, M, xo)
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, inline='always')
 def _unit_guards(kind, v, y, xo, p, mode, g, k):
     if kind == K_MAGNETIC:
         return _tr.unit_guards(v, y, xo, p, mode, g, k)
@@ -148,7 +149,7 @@ def _unit_guards(kind, v, y, xo, p, mode, g, k):
     return k
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, inline='always')
 def _unit_mode(kind, v, y, xo, p, mode):
     if kind == K_MAGNETIC:
         return _tr.unit_mode(v, y, xo, p, mode)
@@ -159,7 +160,7 @@ def _unit_mode(kind, v, y, xo, p, mode):
     return 0
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, inline='always')
 def _unit_light_state(kind, v, y, xo, p, mode, level):
     if kind == K_FILAMENT:
         return y[xo]
@@ -173,7 +174,7 @@ def _unit_light_state(kind, v, y, xo, p, mode, level):
 
 
 # --------------------------------------------------------------------------- dimmer
-@numba.njit(cache=True)
+@numba.njit(cache=True, inline='always')
 def _diac_current(y, P, S):
     if S[DIAC_ON] == 0:
         return 0.0
@@ -182,7 +183,7 @@ def _diac_current(y, P, S):
     return (y[VT] + P[VONN]) / P[RG]
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, inline='always')
 def _clamp_current(vd, P, S):
     c = S[CLAMP]
     if c == 0:
@@ -490,7 +491,7 @@ def _record_off(t, S, Q, HC, P, chop, y):
     S[LATCHED] = 0
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, inline='always')
 def _series_current_index(kind, p, xo):
     """Index of a unit's inductive terminal-current state, or −1."""
     if kind == K_MAGNETIC:
@@ -725,6 +726,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         ks += 1
     h = 1e-7
     fresh = True
+    jac_age = 0
     while t < t_end - 1e-13:
         # next time event
         t_ev = min(t_hb, t_end)
@@ -739,7 +741,12 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             h = t_ev - t
         mass(P, IP, S, gk, gxo, gpo, gnp, GP, M)
         residual(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F0)
-        jacobian(t, y, F0, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F1)
+        # the Jacobian is kept between steps (modified Newton) and refreshed after events,
+        # after a failed step and every JAC_AGE steps
+        if fresh or jac_age >= JAC_AGE:
+            jacobian(t, y, F0, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F1)
+            jac_age = 0
+        jac_age += 1
         ng0 = guards(y, P, IP, S, gk, gxo, gpo, gnp, GP, g0)
         if fresh:
             outputs(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o0)
@@ -753,6 +760,10 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             counters[1] += 1
             if np.isinf(err):
                 h *= 0.25
+                if jac_age > 1:
+                    jacobian(t, y, F0, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F1)
+                    jac_age = 1
+                    h *= 4.0
             else:
                 h *= max(0.2, 0.9 * err ** (-1.0 / 3.0))
             if h < 1e-12:
