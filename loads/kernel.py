@@ -592,6 +592,18 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
 
 
 @numba.njit(cache=True)
+def _fire_phase(t, y, P, S, Q, HC):
+    """Phase control: the gate pulse starts at t."""
+    Q[T_FIRE] = np.inf
+    S[SW_ON] = 1
+    S[GATE] = 1
+    S[LATCHED] = 0 if abs(y[ISW]) < P[ILATCH] else 1
+    S[CPOL] = 1 if y[ISW] > 0.0 else -1
+    Q[GATE_END] = t + P[GATEW]
+    _record_firing(t, S, Q, HC, P)
+
+
+@numba.njit(cache=True)
 def _start_half_cycle(t, P, IP, S, Q, HC):
     h = S[HCIDX]
     if h < HC.shape[0]:
@@ -714,6 +726,8 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             to = (k_hb + 1) * half - P[ALPHA] / P[OMEGA]
             Q[T_OFF] = to if to > t else np.inf
             S[SW_ON] = 1 if to > t else 0
+    if abs(t - Q[T_FIRE]) < 1e-12:
+        _fire_phase(t, y, P, S, Q, HC)
     for _ in range(5):
         update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP)
         make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F0, G, work, F1, rhs)
@@ -836,15 +850,6 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         counters[0] += 1
         event = crossed
         # time events
-        if abs(t - Q[T_FIRE]) < 1e-12:
-            Q[T_FIRE] = np.inf
-            S[SW_ON] = 1
-            S[GATE] = 1
-            S[LATCHED] = 0 if abs(y[ISW]) < P[ILATCH] else 1
-            S[CPOL] = 1 if y[ISW] > 0.0 else -1
-            Q[GATE_END] = t + P[GATEW]
-            _record_firing(t, S, Q, HC, P)
-            event = True
         if IP[CONTROL] == PHASE and IP[EDGE] == LEADING and S[GATE] != 0 and abs(t - Q[GATE_END]) < 1e-12:
             S[GATE] = 0
             event = True
@@ -862,6 +867,9 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
                 S[FIRE_HC] = S[HCIDX]
                 _record_firing(t, S, Q, HC, P)
             t_hb += half
+            event = True
+        if abs(t - Q[T_FIRE]) < 1e-12:
+            _fire_phase(t, y, P, S, Q, HC)
             event = True
         if event:
             for _ in range(5):

@@ -1,0 +1,216 @@
+"""The circuit simulator against closed forms, textbook worked examples and limits."""
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+from scipy.integrate import quad
+from scipy.optimize import brentq
+
+from loads.circuit import Circuit
+from loads.dimmer import Dimmer, RcDiac
+from loads.filament import Filament
+from loads.linear import Linear
+from loads.simulation import simulate, sweep
+from loads.supply import Supply
+from loads.transformer import MagneticTransformer
+
+R_ON = 1e-3   # the ideal switch's on-resistance in these circuits (as in the ngspice decks)
+
+
+def ideal_circuit(load, *, v=120.0, f=60.0, edge="leading", holding_a=1e-3):
+    """An ideal phase controller: no source impedance, no choke, no on-state drop."""
+    return Circuit(
+        supply=Supply(voltage_v=v, frequency_hz=f, source_resistance_ohm=0.0, source_inductance_h=0.0,
+                      wiring_capacitance_f=0.0),
+        dimmer=Dimmer(control="phase", edge=edge, rc_diac=None, on_state_voltage_v=0.0, on_state_resistance_ohm=R_ON,
+                      choke_inductance_h=0.0, holding_current_a=holding_a, latching_current_a=holding_a,
+                      rated_load_w=5000.0, min_load_w=0.0, clamp_voltage_v=1000.0, trip_current_a=1000.0),
+        loads=[load])
+
+
+def phase_cut_rms(v_rms, alpha_rad):
+    """Vo = Vs·√(1 − α/π + sin 2α/(2π))  [any power-electronics text, AC voltage controllers]."""
+    return v_rms * math.sqrt(1 - alpha_rad / math.pi + math.sin(2 * alpha_rad) / (2 * math.pi))
+
+
+@pytest.mark.analytic
+@pytest.mark.parametrize("edge", ["leading", "trailing"])
+@pytest.mark.parametrize("alpha_deg", [0.0, 30.0, 45.0, 60.0, 90.0, 120.0, 150.0, 175.0])
+def test_resistive_rms_matches_closed_form(edge, alpha_deg):
+    r = 10.0
+    res = simulate(ideal_circuit(Linear(resistance_ohm=r, rated_power_w=1440, rated_voltage_v=120), edge=edge),
+                   firing_angle_deg=alpha_deg, cycles=3)
+    expected = phase_cut_rms(120.0, math.radians(alpha_deg)) * r / (r + R_ON)
+    got = res.last_cycle()["load_rms_v"]
+    # 0.1 % is the issue's requirement
+    assert got == pytest.approx(expected, rel=1e-3)
+
+
+@pytest.mark.analytic
+def test_no_conduction_at_180_degrees():
+    res = simulate(ideal_circuit(Linear(resistance_ohm=10.0, rated_power_w=1440, rated_voltage_v=120)),
+                   firing_angle_deg=180.0, cycles=2)
+    assert res.last_cycle()["load_rms_v"] < 1e-3 * 120
+
+
+@pytest.mark.analytic
+def test_power_at_90_degrees_is_half_of_full():
+    c = ideal_circuit(Linear(resistance_ohm=10.0, rated_power_w=1440, rated_voltage_v=120))
+    full = simulate(c, firing_angle_deg=0.0, cycles=2).last_cycle()["power_w"]
+    half = simulate(c, firing_angle_deg=90.0, cycles=2).last_cycle()["power_w"]
+    # exact in closed form [derived]; 0.1 % allows for the located firing instant
+    assert half / full == pytest.approx(0.5, rel=1e-3)
+
+
+@pytest.mark.analytic
+@pytest.mark.parametrize("alpha_deg", [45.0, 90.0, 135.0])
+def test_half_cycles_symmetric_and_energy_balanced(alpha_deg):
+    r = 10.0
+    res = simulate(ideal_circuit(Linear(resistance_ohm=r, rated_power_w=1440, rated_voltage_v=120)),
+                   firing_angle_deg=alpha_deg, cycles=3)
+    hc = res.half_cycles
+    # symmetry: positive and negative half-cycles carry the same rms and firing angle
+    assert hc.load_rms_a[-1] == pytest.approx(hc.load_rms_a[-2], rel=1e-6)
+    assert hc.firing_angle_deg[-1] == pytest.approx(hc.firing_angle_deg[-2], abs=1e-6)
+    assert abs(hc.mean_current_a[-2:].sum()) < 1e-6 * hc.load_rms_a[-1]
+    # energy balance: mean v·i equals the power dissipated in R, I²R (0.5 % per the issue)
+    assert hc.power_w[-1] == pytest.approx(hc.load_rms_a[-1] ** 2 * r, rel=5e-3)
+
+
+def rl_extinction_deg(alpha_deg, theta_rad):
+    """β from sin(β − θ) = sin(α − θ)·exp(−(β − α)/tan θ) [REFERENCES, R–L load]."""
+    a = math.radians(alpha_deg)
+
+    def f(b):
+        return math.sin(b - theta_rad) - math.sin(a - theta_rad) * math.exp(-(b - a) / math.tan(theta_rad))
+    return math.degrees(brentq(f, a + 1e-9, a + math.pi + 1e-9 if a > theta_rad else 2 * math.pi))
+
+
+@pytest.mark.analytic
+@pytest.mark.parametrize("theta_deg", [30.0, 45.0, 60.0])
+@pytest.mark.parametrize("alpha_deg", [70.0, 90.0, 120.0])
+def test_rl_extinction_angle(theta_deg, alpha_deg):
+    f, r = 60.0, 5.0
+    ind = r * math.tan(math.radians(theta_deg)) / (2 * math.pi * f)
+    res = simulate(ideal_circuit(Linear(resistance_ohm=r, inductance_h=ind, rated_power_w=1000, rated_voltage_v=120)),
+                   firing_angle_deg=alpha_deg, cycles=3)
+    beta = rl_extinction_deg(alpha_deg, math.radians(theta_deg))
+    got = res.half_cycles.extinction_angle_deg[-3:-1]
+    # 0.05° is the issue's requirement (holding current 1 mA shortens conduction by ~0.002°)
+    assert np.all(np.abs(got - beta) < 0.05), (got, beta)
+
+
+def rl_waveform_error(tol):
+    """Largest deviation of the simulated R–L current from the closed form over one
+    half-cycle, holding current negligible [A]."""
+    f, r, ind, alpha = 60.0, 2.5, 6.5e-3, math.radians(90.0)
+    w = 2 * math.pi * f
+    res = simulate(ideal_circuit(Linear(resistance_ohm=r, inductance_h=ind, rated_power_w=1000, rated_voltage_v=120),
+                                 holding_a=1e-6),
+                   firing_angle_deg=90.0, cycles=1, tolerance=tol, samples_per_cycle=2000)
+    z = math.hypot(r + R_ON, w * ind)
+    th = math.atan2(w * ind, r + R_ON)
+    vm = 120 * math.sqrt(2)
+    x = (w * res.t_s) % math.pi
+    exact = vm / z * (np.sin(x - th) - math.sin(alpha - th) * np.exp((alpha - x) / math.tan(th)))
+    exact = np.where(x >= alpha, exact, 0.0)
+    m = res.t_s < 1 / (2 * f)
+    return float(np.max(np.abs(res.load_a[m] - exact[m])))
+
+
+@pytest.mark.analytic
+def test_halving_the_tolerance_shrinks_the_error():
+    errors = [rl_waveform_error(tol) for tol in (1e-2, 5e-3, 2.5e-3, 1.25e-3)]
+    assert all(b < a for a, b in zip(errors, errors[1:])), errors
+
+
+# --- Rashid, Power Electronics 4th ed., Examples 11.1 and 11.2 -------------------------
+
+def thyristor_figures(res):
+    """Average and rms of one thyristor of the antiparallel pair over the last cycle."""
+    t, i = res.t_s, res.dimmer_a
+    period = 1 / res.frequency_hz
+    m = t >= t[-1] - period - 1e-12
+    ti, ii = t[m], np.clip(i[m], 0, None)
+    avg = np.trapezoid(ii, ti) / period
+    rms = math.sqrt(np.trapezoid(ii ** 2, ti) / period)
+    return avg, rms
+
+
+@pytest.mark.published
+def test_rashid_example_11_1_resistive():
+    # RASHID4_EX11_1: 120 V, 60 Hz, R = 10 Ω, α = 90°: Vo = 84.85 V, Io = 8.485 A, P = 720 W,
+    # PF 0.707, thyristor average 2.70 A, thyristor rms 6.0 A (printed precision)
+    res = simulate(ideal_circuit(Linear(resistance_ohm=10.0, rated_power_w=1440, rated_voltage_v=120)),
+                   firing_angle_deg=90.0, cycles=3, samples_per_cycle=4000)
+    lc = res.last_cycle()
+    assert round(lc["load_rms_v"], 1) == pytest.approx(84.8, abs=0.1)      # 84.85 V
+    assert lc["load_rms_a"] == pytest.approx(8.485, abs=0.005)
+    assert lc["power_w"] == pytest.approx(720, abs=1)
+    assert lc["power_w"] / (120 * lc["load_rms_a"]) == pytest.approx(0.707, abs=0.001)
+    avg, rms = thyristor_figures(res)
+    assert avg == pytest.approx(2.70, abs=0.01)
+    assert rms == pytest.approx(6.0, abs=0.05)
+
+
+@pytest.mark.published
+def test_rashid_example_11_2_inductive():
+    # RASHID4_EX11_2: 120 V, 60 Hz, R = 2.5 Ω, L = 6.5 mH, α = 90°: β = 220.4°, thyristor rms
+    # 15.07 A, load rms 21.31 A, thyristor average 8.23 A, P ≈ 1135 W, PF ≈ 0.444
+    res = simulate(ideal_circuit(Linear(resistance_ohm=2.5, inductance_h=6.5e-3, rated_power_w=1000,
+                                        rated_voltage_v=120)),
+                   firing_angle_deg=90.0, cycles=3, samples_per_cycle=4000)
+    lc = res.last_cycle()
+    assert res.half_cycles.extinction_angle_deg[-2] == pytest.approx(220.4, abs=0.05)
+    assert lc["load_rms_a"] == pytest.approx(21.31, abs=0.01)
+    assert lc["power_w"] == pytest.approx(1135, abs=1.5)
+    assert lc["power_w"] / (120 * lc["load_rms_a"]) == pytest.approx(0.444, abs=0.001)
+    avg, rms = thyristor_figures(res)
+    assert rms == pytest.approx(15.07, abs=0.01)
+    assert avg == pytest.approx(8.23, abs=0.01)
+    # the rms output voltage from the same waveform is 90.4 V [derived, REFERENCES]
+    assert lc["load_rms_v"] == pytest.approx(90.4, abs=0.05)
+
+
+# --- behaviour that must come out of the physics, not be coded in ------------------------
+
+def rc_diac_filament_circuit():
+    """120 V 60 Hz two-wire rc-diac dimmer driving a 100 W filament lamp (invented scenario)."""
+    return Circuit(supply=Supply(voltage_v=120.0, frequency_hz=60.0),
+                   dimmer=Dimmer(control="rc-diac", rated_load_w=600, min_load_w=0,
+                                 rc_diac=RcDiac(fixed_resistance_ohm=3300, variable_resistance_ohm=250e3,
+                                                timing_capacitance_f=100e-9, breakover_v=32, snapback_v=10)),
+                   loads=[Filament(rated_power_w=100, rated_voltage_v=120)])
+
+
+@pytest.mark.analytic
+def test_rc_diac_snap_on_hysteresis():
+    # common practice, no source: the lamp turns on at a higher setting than it turns off
+    settings = list(np.round(np.arange(0.20, 0.56, 0.025), 4))
+    up = sweep(rc_diac_filament_circuit(), settings, "up", cycles_per_point=6, analysed_cycles=2)
+    down = sweep(rc_diac_filament_circuit(), settings, "down", cycles_per_point=6, analysed_cycles=2)
+    on_up = min(p.setting for p in up if p.fired_fraction == 1.0)
+    off_down = min(p.setting for p in down if p.fired_fraction == 1.0)
+    assert on_up > off_down, (on_up, off_down)
+    # and the lamp snaps on: its first light on the way up is well above its last on the way down
+    first_up = next(p for p in up if p.fired_fraction == 1.0)
+    last_down = min((p for p in down if p.fired_fraction == 1.0), key=lambda p: p.setting)
+    assert first_up.power_w > 2 * last_down.power_w
+
+
+@pytest.mark.analytic
+def test_transformer_magnetising_peaks_grow_with_asymmetry():
+    # common practice, no source: a DC component drives an iron core into saturation
+    peaks = []
+    for asym in (0.0, 3.0, 6.0):
+        c = Circuit(supply=Supply(voltage_v=230.0, frequency_hz=50.0),
+                    dimmer=Dimmer(control="rc-diac", rated_load_w=400, min_load_w=0,
+                                  rc_diac=RcDiac(asymmetry_v=asym)),
+                    loads=[MagneticTransformer(rated_va=60, secondary_voltage_v=12, lamp_power_w=50,
+                                               rated_voltage_v=230)])
+        res = simulate(c, setting=0.6, cycles=12)
+        hc = res.half_cycles
+        peaks.append(float(np.max(hc.peak_line_current_a[-8:])))
+    assert peaks[0] < peaks[1] < peaks[2], peaks
