@@ -798,6 +798,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             ytry[:] = y1
             yhi = y1.copy()
             yghi = yg.copy()
+            hi_valid = True
             while hi - lo > P[EVTOL]:
                 # earliest crossing estimate by linear interpolation of each guard
                 frac = 1.0
@@ -810,23 +811,33 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
                 hm = min(hm + 0.25 * P[EVTOL], hi - 0.25 * P[EVTOL]) if hi - lo > P[EVTOL] else hm
                 err2 = trbdf2_step(t, hm, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
                                    yg, ytry, Fg, F1, A, piv, G, rhs, est)
-                if np.isinf(err2):
-                    return 1
                 gm = np.zeros(64)
-                guards(ytry, P, IP, S, gk, gxo, gpo, gnp, GP, gm)
                 any_c = False
+                if np.isinf(err2):
+                    # Newton failed on the trial (a kink inside it): shrink from above
+                    if hm - lo < 1e-12:
+                        return 1
+                    hi = hm
+                    hi_valid = False
+                    continue
+                guards(ytry, P, IP, S, gk, gxo, gpo, gnp, GP, gm)
                 for i in range(ng0):
                     if (g0[i] < 0.0) != (gm[i] < 0.0):
                         any_c = True
                         break
                 if any_c:
                     hi = hm
+                    hi_valid = True
                     ghi[:] = gm
                     yhi[:] = ytry
                     yghi[:] = yg
                 else:
                     lo = hm
                     glo[:] = gm
+            if not hi_valid:
+                if np.isinf(trbdf2_step(t, hi, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
+                                        yghi, yhi, Fg, F1, A, piv, G, rhs, est)):
+                    return 1
             h = hi
             y1[:] = yhi
             yg[:] = yghi
