@@ -127,7 +127,7 @@ def filament_case(alpha_deg, cycle):
         assert t_ext == pytest.approx(offs[k], abs=10e-6)
 
 
-@pytest.mark.xfail(strict=True, reason="open discrepancy, under investigation: the first-firing peak agrees "
+@pytest.mark.xfail(strict=False, reason="open discrepancy, under investigation: the first-firing peak agrees "
                    "(9.72 A both) but the current rms over a cold-start cycle does not (α = 90°: simulator "
                    "1.24 A, reference 3.31 A); the reference construction or the thermal state is wrong")
 @pytest.mark.parametrize("cycle", [0, 2])
