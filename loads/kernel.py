@@ -781,7 +781,19 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             else:
                 h *= max(0.2, 0.9 * err ** (-1.0 / 3.0))
             if h < 1e-12:
+                break
+        if h < 1e-12:
+            # the step collapsed (a kink the Newton iteration cannot cross): take one
+            # backward-Euler step of 1 ns past it, refresh the modes and go on
+            counters[1] += 1000000
+            if not make_consistent(t + CONSISTENT_STEP_S, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt,
+                                   M, J, A, piv, F0, G, work, F1, rhs):
                 return 1
+            t += CONSISTENT_STEP_S
+            update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP)
+            fresh = True
+            h = 1e-8
+            continue
         fac = 2.0 if err < 1e-6 else min(2.0, 0.9 * err ** (-1.0 / 3.0))
         # located events: did any guard change sign?
         guards(y1, P, IP, S, gk, gxo, gpo, gnp, GP, g1)
