@@ -1,0 +1,773 @@
+"""One function per check id of DESIGN §4.
+
+Each takes the circuit and the part of the ``Evidence`` it needs and returns a
+``CheckResult``: status, value, limit, unit, margin (fraction of the limit, positive
+inside), a one-sentence message for a practitioner, a remedy where one exists, the
+bibliography keys behind the criterion, and ``safety`` for surge, spike, DC and
+overload matters.  Where the physics decides, the check judges the simulated
+waveforms, not a rule of thumb.
+"""
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+
+import numpy as np
+
+from compat import breaker_band, derating, flicker, harmonics
+from compat.perception import cie_lightness, perceived_brightness
+from compat.report import CheckResult, Status
+from compat.runs import SettingRun, samples_per_cycle, tail
+from loads.circuit import Circuit
+from loads.dimmer import Edge
+from loads.driver import ElectronicDriver
+from loads.electronic_transformer import ElectronicTransformer
+from loads.linear import Linear
+from loads.simulation import EARLY_DROPOUT_DEG, SimResult
+from loads.transformer import MagneticTransformer
+
+CHECK_IDS = ("rating", "minimum-load", "edge-match", "latching", "holding", "repetitive-peak", "inrush", "breaker",
+             "off-state", "dc-offset", "turn-off-surge", "dimming-range", "flicker", "harmonics", "dissipation")
+
+# Engineering choice: a setting gives light when its mean light exceeds 0.2 % of full
+# (well below the 5 % dimming target, well above numerical noise).
+LIT_FRACTION = 0.002
+# Engineering choice: off-state light above 0.1 % of a group's rated light is visible
+# in a dark room as a glow (no source; an LED at 1/1000 of full is plainly seen at night).
+OFF_VISIBLE_FRACTION = 0.001
+# LRC_ASSIST_DIMMING: dim to 5 % or lower; at full, at least 90 % of the plain-switch light.
+DIM_TARGET_LOW = 0.05
+DIM_TARGET_HIGH = 0.90
+# Engineering choice: an inductive ratio ωL/R above this makes a linear load "inductive"
+# for edge matching (its current lags by more than ~6°).
+INDUCTIVE_RATIO = 0.1
+# TRADE: a solid-state dimmer dissipates about 1–2 % of the load power as heat; the
+# allowance is the upper figure applied to the derated rating (the heat it is built to shed).
+DISSIPATION_SHARE = 0.02
+# Engineering choice: a peak within 2 % of the clamp voltage means the clamp conducts
+# (the simulator holds the voltage at the clamp level while it does).
+CLAMP_REACHED = 0.98
+# Engineering choice: symmetric firing into a transformer gives peaks equal within a few
+# per cent; a saturating core gives peaks several times larger in one polarity.  The
+# caution also starts when the settled DC reaches half the saturation headroom.
+DC_ASYMMETRY_CAUTION_PCT = 15.0
+DC_ASYMMETRY_FAIL_PCT = 50.0
+
+
+def _margin(value: float, limit: float, *, upper: bool = True) -> float:
+    """Fraction of the limit by which value is inside it (upper: value must stay below)."""
+    if limit == 0:
+        return 0.0 if value == limit else (-math.inf if (value > 0) == upper else math.inf)
+    return (limit - value) / abs(limit) if upper else (value - limit) / abs(limit)
+
+
+def _finite(x):
+    return None if x is None or not math.isfinite(x) else float(x)
+
+
+def _res(check_id: str, status: Status, value, limit, unit: str, margin, message: str, *, remedy=None,
+         sources=(), safety=False, details=None) -> CheckResult:
+    return CheckResult(id=check_id, status=status, value=_finite(value), limit=_finite(limit), unit=unit,
+                       margin=_finite(margin), message=message, remedy=remedy, sources=tuple(sources),
+                       safety=safety, details=details or {})
+
+
+def _na(check_id: str, why: str, *, sources=(), safety=False) -> CheckResult:
+    return _res(check_id, Status.NOT_APPLICABLE, None, None, "", None, why, sources=sources, safety=safety)
+
+
+def _fmt_setting(run: SettingRun) -> str:
+    return f"setting {run.setting:.2f} ({run.direction})"
+
+
+# ---------------------------------------------------------------- nameplate checks
+
+def check_rating(circuit: Circuit) -> CheckResult:
+    """Load (W, VA, LED rule) against the dimmer's derated rating."""
+    use = derating.rating_use(circuit.dimmer, circuit.loads)
+    u = use.utilisation
+    rules = "; ".join([r.text for r in use.rules] + [g.rule.text for g in use.groups])
+    details = {"derating_factor": use.factor, "rules": [(r.text, r.origin) for r in use.rules],
+               "groups": [(g.name, g.load, g.rating, g.unit, g.rule.text, g.rule.origin) for g in use.groups]}
+    over_count = use.max_lamps is not None and use.led_units > use.max_lamps
+    status = Status.FAIL if (u > 1.0 or over_count) else Status.PASS
+    msg = f"The lamps take {100 * u:.0f} % of the dimmer's derated rating ({rules})."
+    if over_count:
+        msg = (f"{use.led_units} LED lamps exceed the dimmer's printed cap of {use.max_lamps}; "
+               f"they take {100 * u:.0f} % of its derated rating.")
+    remedy = None
+    if status is Status.FAIL:
+        remedy = "Fit a dimmer with a larger rating for this load type, or split the lamps over two dimmers."
+    return _res("rating", status, 100 * u, 100.0, "%", 1.0 - u, msg, remedy=remedy, sources=("TRADE",),
+                safety=True, details=details)
+
+
+def _linear_apparent_va(g: Linear, voltage_v: float, frequency_hz: float) -> float:
+    """Apparent power of a linear load at rated voltage and frequency [VA]."""
+    w = 2 * math.pi * frequency_hz
+    z = complex(g.resistance_ohm, w * g.inductance_h)
+    if g.series_capacitance_f > 0:
+        z += 1 / (1j * w * g.series_capacitance_f)
+    y = 1 / z + 1j * w * g.parallel_capacitance_f
+    return g.count * voltage_v ** 2 * abs(y)
+
+
+def counted_load_w(circuit: Circuit) -> tuple[float, list[tuple[str, float]]]:
+    """What counts against the dimmer's minimum load: lamp watts (transformers: the
+    lamps they feed) plus a correction device at its apparent power at the supply
+    voltage (engineering choice: it is fitted to provide current, not watts, and such
+    devices are rated in the watts of minimum load they stand in for) [W]."""
+    parts = []
+    for g in circuit.loads:
+        if isinstance(g, MagneticTransformer | ElectronicTransformer):
+            parts.append((g.name, g.count * g.lamp_power_w))
+        else:
+            parts.append((g.name, g.total_rated_power_w))
+    if circuit.correction is not None:
+        parts.append((circuit.correction.name, _linear_apparent_va(circuit.correction, circuit.supply.voltage_v,
+                                                                   circuit.supply.frequency_hz)))
+    return sum(p for _, p in parts), parts
+
+
+def check_minimum_load(circuit: Circuit) -> CheckResult:
+    """Total load against the dimmer's minimum load."""
+    total, parts = counted_load_w(circuit)
+    m = circuit.dimmer.min_load_w
+    if m <= 0:
+        return _res("minimum-load", Status.PASS, total, 0.0, "W", None,
+                    "The dimmer states no minimum load.", sources=("TRADE",))
+    ok = total >= m
+    msg = (f"The circuit puts {total:.0f} W on a dimmer that needs at least {m:.0f} W."
+           if not ok else f"The circuit's {total:.0f} W is above the dimmer's {m:.0f} W minimum.")
+    remedy = None if ok else (f"Add at least {m - total:.0f} W of load (more lamps, a filament lamp), "
+                              "fit a load-correction device across the lamps, or use a dimmer with a lower minimum.")
+    return _res("minimum-load", Status.PASS if ok else Status.FAIL, total, m, "W", _margin(total, m, upper=False),
+                msg, remedy=remedy, sources=("TRADE",), details={"parts": parts})
+
+
+def load_character(group, frequency_hz: float) -> str:
+    """"inductive", "capacitive" or "resistive" as the dimmer sees the group."""
+    if isinstance(group, MagneticTransformer):
+        return "inductive"
+    if isinstance(group, ElectronicDriver | ElectronicTransformer):
+        return "capacitive"
+    if isinstance(group, Linear):
+        if group.series_capacitance_f > 0 or group.parallel_capacitance_f > 0:
+            return "capacitive"
+        if 2 * math.pi * frequency_hz * group.inductance_h > INDUCTIVE_RATIO * group.resistance_ohm:
+            return "inductive"
+    return "resistive"
+
+
+def check_edge_match(circuit: Circuit) -> CheckResult:
+    """Dimmer edge against the load's character (TRADE)."""
+    f = circuit.supply.frequency_hz
+    chars = [(g, load_character(g, f)) for g in circuit.loads]
+    total = sum(derating.group_load(g)[0] for g in circuit.loads)
+    ind = [g for g, c in chars if c == "inductive"]
+    cap = [g for g, c in chars if c == "capacitive"]
+    edge = circuit.dimmer.edge
+    if edge is Edge.TRAILING and ind:
+        share = sum(derating.group_load(g)[0] for g in ind) / total
+        return _res("edge-match", Status.FAIL, 100 * share, 0.0, "%", None,
+                    f"A trailing-edge dimmer cuts the current of an inductive load ({', '.join(g.name for g in ind)}) "
+                    "and raises a voltage spike every half-cycle.",
+                    remedy="Use a leading-edge dimmer rated for iron-core transformers, or a transformer made for trailing edge.",
+                    sources=("TRADE",), safety=True)
+    if edge is Edge.LEADING and cap:
+        share = sum(derating.group_load(g)[0] for g in cap) / total
+        return _res("edge-match", Status.CAUTION, 100 * share, 0.0, "%", None,
+                    f"A leading-edge dimmer switches on into capacitor-input electronics ({', '.join(g.name for g in cap)}), "
+                    "which draws a current spike at every firing; see the peak-current check.",
+                    remedy="A trailing-edge dimmer suits capacitor-input lamps better.", sources=("TRADE",))
+    if ind and cap:
+        return _res("edge-match", Status.CAUTION, None, None, "%", None,
+                    "The circuit mixes inductive and capacitive loads, which no single edge suits perfectly.",
+                    remedy="Put the transformer loads and the electronic lamps on separate dimmers.", sources=("TRADE",))
+    kind = "leading" if edge is Edge.LEADING else "trailing"
+    return _res("edge-match", Status.PASS, 0.0, 0.0, "%", None,
+                f"The {kind}-edge dimmer suits these loads.", sources=("TRADE",))
+
+
+# ---------------------------------------------------------------- switch behaviour
+
+def _lit_settings(runs: Sequence[SettingRun], weights) -> list[SettingRun]:
+    return [r for r in runs if r.light_fraction(weights) > LIT_FRACTION]
+
+
+def _end_of_travel(runs: Sequence[SettingRun], weights) -> float:
+    """The lowest setting at which the lamps give light and the switch behaves (stable),
+    in any direction; settings below it are the end of the knob's travel [1]."""
+    good = [r.setting for r in runs if r.light_fraction(weights) > LIT_FRACTION
+            and (r.point.stable if r.point is not None else _clean(r))]
+    return min(good) if good else math.inf
+
+
+def _clean(run: SettingRun, edge: Edge = Edge.LEADING) -> bool:
+    """Every analysed half-cycle fired once, latched and (leading edge) held.  A
+    trailing-edge switch is turned off on purpose, so its turn-off is not a drop-out."""
+    hc = run.half_cycles
+    held = edge is Edge.TRAILING or not np.any(hc.early_dropouts)
+    return bool(len(hc) and np.all(np.isfinite(hc.firing_angle_deg)) and not np.any(hc.failed_latches)
+                and held and not np.any(hc.firings > 1))
+
+
+def check_latching(circuit: Circuit, runs: Sequence[SettingRun], weights) -> CheckResult:
+    """Does the switch latch at each firing, at every setting (from the simulated half-cycles)."""
+    if circuit.dimmer.edge is Edge.TRAILING:
+        return _na("latching", "A trailing-edge dimmer's transistor switch needs no latching current.",
+                   sources=("TEXTBOOK_TRIAC",))
+    if not runs:
+        return _na("latching", "No sweep was simulated.")
+    il = circuit.dimmer.latching_current_a
+    bottom = _end_of_travel(runs, weights)
+    worst, worst_peak, bad_in_range, bad_at_bottom = None, math.inf, [], []
+    for r in runs:
+        hc = r.half_cycles
+        fired = np.isfinite(hc.firing_angle_deg)
+        failed = int(np.sum(hc.failed_latches))
+        if failed:
+            (bad_at_bottom if (r.setting < bottom and r.light_fraction(weights) <= LIT_FRACTION) else bad_in_range).append(r)
+        tried = fired | (hc.failed_latches > 0)
+        if np.any(tried):
+            # the weakest half-cycle: its peak switch current against the latching current
+            peak = float(np.min(hc.peak_current_a[tried]))
+            key = (failed > 0, -peak)
+            if worst is None or key > (worst_failed, -worst_peak):
+                worst, worst_peak, worst_failed = r, peak, failed > 0
+    if worst is None:
+        return _res("latching", Status.FAIL, 0.0, il, "A", -1.0,
+                    "The switch never conducted at any setting: the lamps stay dark.",
+                    remedy="Raise the load (more lamps or a load-correction device) or use a dimmer made for this load.",
+                    sources=("TEXTBOOK_TRIAC",))
+    m = _margin(worst_peak, il, upper=False)
+    details = {"worst_setting": worst.setting, "direction": worst.direction, "failed_settings":
+               [(r.direction, r.setting) for r in bad_in_range + bad_at_bottom]}
+    if bad_in_range:
+        r = max(bad_in_range, key=lambda x: int(np.sum(x.half_cycles.failed_latches)))
+        n = int(np.sum(r.half_cycles.failed_latches))
+        return _res("latching", Status.FAIL, worst_peak, il, "A", min(m, 0.0),
+                    f"At {_fmt_setting(r)} the switch failed to latch {n} time(s) in {len(r.half_cycles)} half-cycles, "
+                    "so the lamps flicker or flash.",
+                    remedy="Raise the current at firing: more lamps, a load-correction device, or a dimmer with a lower latching current.",
+                    sources=("TEXTBOOK_TRIAC",), details=details)
+    if bad_at_bottom:
+        return _res("latching", Status.CAUTION, worst_peak, il, "A", m,
+                    f"Below setting {bottom:.2f} the switch does not latch and the lamps stay off: dead travel at the bottom of the knob.",
+                    sources=("TEXTBOOK_TRIAC",), details=details)
+    return _res("latching", Status.PASS, worst_peak, il, "A", m,
+                f"The switch latches at every firing; the weakest half-cycle peaks at {1000 * worst_peak:.0f} mA "
+                f"against {1000 * il:.0f} mA needed ({_fmt_setting(worst)}).",
+                sources=("TEXTBOOK_TRIAC",), details=details)
+
+
+def check_holding(circuit: Circuit, runs: Sequence[SettingRun], weights) -> CheckResult:
+    """Does conduction hold to the end of each half-cycle; misfires and re-firing."""
+    if circuit.dimmer.edge is Edge.TRAILING:
+        return _na("holding", "A trailing-edge dimmer's transistor switch conducts until it is turned off; no holding current.",
+                   sources=("TEXTBOOK_TRIAC",))
+    if not runs:
+        return _na("holding", "No sweep was simulated.")
+    limit = 180.0 - EARLY_DROPOUT_DEG
+    bottom = _end_of_travel(runs, weights)
+    worst, worst_ext, bad_in_range, bad_at_bottom = None, math.inf, [], []
+    for r in runs:
+        hc = r.half_cycles
+        fired = np.isfinite(hc.extinction_angle_deg)
+        trouble = int(np.sum(hc.early_dropouts)) + int(np.sum(np.clip(hc.firings - 1, 0, None)))
+        if trouble:
+            (bad_at_bottom if (r.setting < bottom and r.light_fraction(weights) <= LIT_FRACTION) else bad_in_range).append(r)
+        if np.any(fired):
+            ext = float(np.min(hc.extinction_angle_deg[fired]))
+            if ext < worst_ext:
+                worst, worst_ext = r, ext
+    if worst is None:
+        return _res("holding", Status.FAIL, 0.0, limit, "deg", -1.0,
+                    "The switch never conducted at any setting.", sources=("TEXTBOOK_TRIAC",))
+    m = _margin(worst_ext, limit, upper=False)
+    details = {"worst_setting": worst.setting, "direction": worst.direction,
+               "holding_current_a": circuit.dimmer.holding_current_a,
+               "failed_settings": [(r.direction, r.setting) for r in bad_in_range + bad_at_bottom]}
+    ih_ma = 1000 * circuit.dimmer.holding_current_a
+    unsteady = [r for r in bad_in_range if r.point is not None and not r.point.stable]
+    if bad_in_range:
+        pool = unsteady or bad_in_range
+        r = max(pool, key=lambda x: int(np.sum(x.half_cycles.early_dropouts)) + int(np.sum(x.half_cycles.firings)))
+        hc = r.half_cycles
+        drops = int(np.sum(hc.early_dropouts))
+        refires = int(np.sum(np.clip(hc.firings - 1, 0, None)))
+        what = (f"At {_fmt_setting(r)} the current falls below the {ih_ma:.0f} mA holding current before the half-cycle "
+                f"ends ({drops} early drop-out(s), {refires} re-firing(s) in {len(hc)} half-cycles)")
+        remedy = ("Add a load-correction device or a filament lamp so the current stays above the holding current, "
+                  "or use a trailing-edge dimmer.")
+        details["unsteady_settings"] = [(x.direction, x.setting) for x in unsteady]
+        if unsteady:
+            return _res("holding", Status.FAIL, worst_ext, limit, "deg", min(m, 0.0), what + ": the lamps flicker.",
+                        remedy=remedy, sources=("TEXTBOOK_TRIAC",), details=details)
+        # Engineering choice: drop-outs and re-firing with the light still steady (the
+        # sweep judged every such setting stable) are a caution, not a failure: the
+        # lamps look right, but the switch chatters (buzz, interference, stress).
+        return _res("holding", Status.CAUTION, worst_ext, limit, "deg", m,
+                    what + "; the light stays steady, but the switch chatters (buzz, radio interference).",
+                    remedy=remedy, sources=("TEXTBOOK_TRIAC",), details=details)
+    if bad_at_bottom:
+        return _res("holding", Status.CAUTION, worst_ext, limit, "deg", m,
+                    f"Only below setting {bottom:.2f}, where the lamps are out, does conduction drop out early.",
+                    sources=("TEXTBOOK_TRIAC",), details=details)
+    return _res("holding", Status.PASS, worst_ext, limit, "deg", m,
+                f"Conduction holds to within {EARLY_DROPOUT_DEG:.0f}° of the end of every half-cycle "
+                f"(earliest end {worst_ext:.0f}° at {_fmt_setting(worst)}).",
+                sources=("TEXTBOOK_TRIAC",), details=details)
+
+
+def check_repetitive_peak(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResult:
+    """Per-half-cycle current peaks and crest factor against the switch's rating."""
+    if not runs:
+        return _na("repetitive-peak", "No sweep was simulated.")
+    d = circuit.dimmer
+    limit = d.repetitive_peak_a if d.edge is Edge.LEADING else min(d.repetitive_peak_a, d.trip_current_a)
+    worst, peak, crest = None, -1.0, 0.0
+    for r in runs:
+        hc = r.half_cycles
+        p = float(np.max(hc.peak_current_a)) if len(hc) else 0.0
+        if p > peak:
+            i = r.result.dimmer_a[r.span]
+            rms = float(np.sqrt(np.mean(i ** 2)))
+            worst, peak, crest = r, p, (p / rms if rms > 0 else 0.0)
+    m = _margin(peak, limit)
+    what = "repetitive peak rating" if limit == d.repetitive_peak_a else "over-current trip level"
+    details = {"worst_setting": worst.setting, "direction": worst.direction, "crest_factor": crest}
+    if peak > limit:
+        return _res("repetitive-peak", Status.FAIL, peak, limit, "A", m,
+                    f"At {_fmt_setting(worst)} the switch current peaks at {peak:.1f} A every half-cycle "
+                    f"(crest factor {crest:.1f}), above its {limit:.0f} A {what}.",
+                    remedy="Fewer capacitor-input lamps on this dimmer, a trailing-edge dimmer, or a larger choke.",
+                    sources=("TRADE",), safety=True, details=details)
+    return _res("repetitive-peak", Status.PASS, peak, limit, "A", m,
+                f"Half-cycle current peaks reach {peak:.2f} A (crest factor {crest:.1f}) against the {limit:.0f} A {what}.",
+                sources=("TRADE",), safety=True, details=details)
+
+
+def check_inrush(circuit: Circuit, inrush: Sequence[tuple[float, SimResult]]) -> CheckResult:
+    """Switch-on surge at the worst switch-on angle: peak and I²t against the surge rating."""
+    if not inrush:
+        return _na("inrush", "No switch-on run was simulated.", safety=True)
+    d = circuit.dimmer
+    worst_angle, peak, i2t = 0.0, -1.0, 0.0
+    for angle, res in inrush:
+        p = float(np.max(res.half_cycles.peak_current_a))
+        q = float(np.max(res.half_cycles.i2t_a2s))
+        if p > peak:
+            worst_angle, peak = angle, p
+        i2t = max(i2t, q)
+    mp = _margin(peak, d.surge_peak_a)
+    mi = _margin(i2t, d.surge_i2t_a2s)
+    details = {"switch_on_deg": worst_angle, "i2t_a2s": i2t, "i2t_limit_a2s": d.surge_i2t_a2s,
+               "peak_margin": mp, "i2t_margin": mi}
+    if mp < 0 or mi < 0:
+        return _res("inrush", Status.FAIL, peak, d.surge_peak_a, "A", min(mp, mi),
+                    f"Switching on cold at {worst_angle:.0f}° draws {peak:.0f} A peak and {i2t:.1f} A²s, "
+                    f"beyond the switch's {d.surge_peak_a:.0f} A / {d.surge_i2t_a2s:.0f} A²s surge rating.",
+                    remedy="Fewer lamps per dimmer, lamps with a soft start, or a dimmer with a higher surge rating.",
+                    sources=("TRADE",), safety=True, details=details)
+    return _res("inrush", Status.PASS, peak, d.surge_peak_a, "A", min(mp, mi),
+                f"The worst switch-on surge (cold, at {worst_angle:.0f}°) peaks at {peak:.1f} A and {i2t:.2f} A²s, "
+                f"inside the switch's {d.surge_peak_a:.0f} A / {d.surge_i2t_a2s:.0f} A²s rating.",
+                sources=("TRADE",), safety=True, details=details)
+
+
+def check_breaker(circuit: Circuit, inrush: Sequence[tuple[float, SimResult]],
+                  max_counts: dict[str, int] | None = None) -> CheckResult:
+    """Circuit switch-on surge against the breaker's instantaneous trip band (IEC60898_1).
+
+    max_counts: optionally, for each group name, the most units the breaker holds
+    (found by search over the simulation, see ``compat.sizing``)."""
+    b = circuit.breaker
+    if b is None:
+        return _na("breaker", "No breaker is given for this circuit.", sources=("IEC60898_1",), safety=True)
+    if not inrush:
+        return _na("breaker", "No switch-on run was simulated.", sources=("IEC60898_1",), safety=True)
+    worst_angle, peak = max(((a, float(np.max(r.half_cycles.peak_line_current_a))) for a, r in inrush),
+                            key=lambda x: x[1])
+    j = breaker_band.judge_peak(b, peak)
+    name = f"{b.rated_current_a:g} A type {b.curve}" if b.instantaneous_trip_a is None else f"{b.rated_current_a:g} A breaker"
+    details = {"switch_on_deg": worst_angle, "no_trip_peak_a": j.no_trip_peak_a, "must_trip_peak_a": j.must_trip_peak_a,
+               "max_counts": dict(max_counts or {})}
+    counts = ""
+    if max_counts:
+        counts = " It holds at most " + ", ".join(
+            (f"{n} × {k}" if n > 0 else f"not even one {k}") for k, n in max_counts.items()) + " (others unchanged)."
+    better = breaker_band.holding_curve(peak, b.rated_current_a)
+    remedy = None
+    if j.zone is not breaker_band.TripZone.HOLDS:
+        remedy = "Split the lamps over more circuits or choose lamps with a lower switch-on surge"
+        if better is not None and better != b.curve and b.instantaneous_trip_a is None:
+            remedy += (f"; a type {better} breaker would hold the surge, if the circuit's fault loop impedance "
+                       "allows it under local wiring rules")
+        remedy += "." + counts
+    if j.zone is breaker_band.TripZone.TRIPS:
+        status, msg = Status.FAIL, (f"The switch-on surge peaks at {peak:.0f} A, above the {j.must_trip_peak_a:.0f} A "
+                                    f"at which a {name} breaker must trip.")
+    elif j.zone is breaker_band.TripZone.MAY_TRIP:
+        status, msg = Status.FAIL, (f"The switch-on surge peaks at {peak:.0f} A, inside the band where a {name} "
+                                    "breaker may trip: nuisance tripping is likely.")
+    else:
+        status, msg = Status.PASS, (f"The switch-on surge peaks at {peak:.1f} A, below the {j.no_trip_peak_a:.0f} A "
+                                    f"a {name} breaker must hold.")
+    return _res("breaker", status, peak, j.no_trip_peak_a, "A", j.margin, msg, remedy=remedy,
+                sources=("IEC60898_1",), safety=True, details=details)
+
+
+# ---------------------------------------------------------------- off state, DC, spike
+
+def capacitive_current_a(capacitance_f: float, voltage_v: float, frequency_hz: float) -> float:
+    """Current a capacitor passes at mains: I = 2πfCV [A] (TRADE)."""
+    return 2 * math.pi * frequency_hz * capacitance_f * voltage_v
+
+
+def _flash_period_s(t: np.ndarray, on: np.ndarray) -> float | None:
+    rises = np.flatnonzero(on[1:] & ~on[:-1]) + 1
+    if rises.size >= 2:
+        return float(np.mean(np.diff(t[rises])))
+    return None
+
+
+def check_off_state(circuit: Circuit, off: SimResult | None, analysed_cycles: int | None = None) -> CheckResult:
+    """Off-state leakage into the load: glow, periodic flashing (switch never fires)."""
+    if off is None:
+        return _na("off-state", "No off-state run was simulated.")
+    cycles = analysed_cycles or max(1, len(off.half_cycles) // 4)
+    sl = tail(off, cycles)
+    i = off.load_a[sl]
+    leak = float(np.sqrt(np.mean(i ** 2)))
+    gl = np.atleast_2d(off.group_light)[:, sl]
+    t = off.t_s[sl]
+    worst_g, worst_light = 0, -1.0
+    for k in range(gl.shape[0]):
+        if float(np.max(gl[k])) > worst_light:
+            worst_g, worst_light = k, float(np.max(gl[k]))
+    groups = circuit.all_loads
+    gname = groups[worst_g].name if worst_g < len(groups) else "load"
+    on = gl[worst_g] > OFF_VISIBLE_FRACTION
+    lim = OFF_VISIBLE_FRACTION
+    details = {"leakage_rms_a": leak, "group": gname,
+               "snubber_estimate_a": capacitive_current_a(circuit.dimmer.snubber_capacitance_f, circuit.supply.voltage_v,
+                                                          circuit.supply.frequency_hz)}
+    m = _margin(worst_light, lim)
+    if not np.any(on):
+        return _res("off-state", Status.PASS, 100 * worst_light, 100 * lim, "%", m,
+                    f"With the dimmer off, {1000 * leak:.1f} mA leaks through the lamps and none of them lights.",
+                    details=details, sources=("TRADE",))
+    share_on = float(np.mean(on))
+    period = _flash_period_s(t, on)
+    details["flash_period_s"] = period
+    remedy = "Fit a load-correction device across the lamps, or use a dimmer with a neutral connection."
+    if share_on > 0.5 and (period is None or period < 2.5 / off.frequency_hz):
+        return _res("off-state", Status.CAUTION, 100 * worst_light, 100 * lim, "%", m,
+                    f"With the dimmer off, {1000 * leak:.1f} mA leaks through the lamps and {gname} glows "
+                    f"at {100 * worst_light:.2f} % of full.",
+                    remedy=remedy, details=details, sources=("TRADE",))
+    when = (f"about every {period:.2f} s" if period is not None
+            else f"at least once in {t[-1] - t[0] + 1 / off.frequency_hz:.1f} s")
+    return _res("off-state", Status.FAIL, 100 * worst_light, 100 * lim, "%", m,
+                f"With the dimmer off, {1000 * leak:.1f} mA leaks into {gname}, which charges up and flashes {when}.",
+                remedy=remedy, details=details, sources=("TRADE",))
+
+
+# Engineering choice: a transformer's DC current flows in its primary alone, taken as
+# half of the referred winding resistance (copper split evenly between the windings).
+PRIMARY_SHARE_OF_WINDING_R = 0.5
+
+
+def transformer_primary_resistance_ohm(tr: MagneticTransformer) -> float:
+    """DC resistance of one transformer's primary [Ω], from its regulation figure."""
+    z_rated = tr.rated_voltage_v ** 2 / tr.rated_va
+    return PRIMARY_SHARE_OF_WINDING_R * tr.winding_resistance_pct / 100.0 * z_rated
+
+
+def transformer_dc_headroom_a(tr: MagneticTransformer) -> float:
+    """DC magnetising current one transformer takes before its core reaches the
+    saturation knee at rated voltage [A]: (knee/rated flux − 1) × the magnetising
+    current peak, the magnetising branch being linear below the knee."""
+    i_rated = tr.rated_va / tr.rated_voltage_v
+    i_mag_peak = math.sqrt(2.0) * tr.magnetising_current_pct / 100.0 * i_rated
+    return (tr.saturation_flux_ratio - 1.0) * i_mag_peak
+
+
+def check_dc_offset(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResult:
+    """Firing asymmetry: DC in the line current and saturation of iron-core transformers.
+
+    The DC voltage the dimmer leaves on the load (mean load voltage over whole cycles)
+    is read from the simulated waveform.  In a transformer it walks the flux until the
+    primary carries the DC current V_dc/R_primary — with a magnetising time constant of
+    seconds, longer than the simulated span — so the settled DC current is computed
+    from the simulated V_dc and compared with the current that takes the core to its
+    saturation knee.  Magnetising peaks already visible in the simulation (peak
+    asymmetry between polarities) are reported as well."""
+    if not runs:
+        return _na("dc-offset", "No sweep was simulated.", safety=True)
+    trs = [g for g in circuit.loads if isinstance(g, MagneticTransformer)]
+    worst = None
+    for r in runs:
+        hc = r.half_cycles
+        n2 = (len(hc) // 2) * 2
+        if n2 == 0 or not np.any(np.isfinite(hc.firing_angle_deg)):
+            continue
+        v_dc = float(np.mean(r.result.load_v[r.span]))
+        i_dc = float(np.mean(hc.mean_current_a[len(hc) - n2:]))
+        pos = hc.polarity[len(hc) - n2:] > 0
+        pk = hc.peak_line_current_a[len(hc) - n2:]
+        ppos, pneg = float(np.max(pk[pos], initial=0.0)), float(np.max(pk[~pos], initial=0.0))
+        lo_, hi_ = min(ppos, pneg), max(ppos, pneg)
+        asym = 100.0 * (hi_ / lo_ - 1.0) if lo_ > 0 else 0.0
+        if trs:
+            ratio = max(abs(v_dc) / transformer_primary_resistance_ohm(g) / transformer_dc_headroom_a(g) for g in trs)
+        else:
+            ratio = 0.0
+        key = (ratio, asym)
+        if worst is None or key > worst[0]:
+            worst = (key, r, v_dc, i_dc, asym)
+    if worst is None:
+        return _na("dc-offset", "No half-cycle conducted.", safety=True)
+    (ratio, asym), r, v_dc, i_dc, asym = worst
+    details = {"worst_setting": r.setting, "direction": r.direction, "dc_voltage_v": v_dc, "dc_current_a": i_dc,
+               "peak_asymmetry_pct": asym}
+    if not trs:
+        return _res("dc-offset", Status.NOT_APPLICABLE, abs(v_dc), None, "V", None,
+                    f"No iron-core transformer on the circuit; the {abs(v_dc):.2f} V DC the dimmer leaves does no harm to these lamps.",
+                    sources=("TRADE",), safety=True, details=details)
+    g = max(trs, key=lambda g: abs(v_dc) / transformer_primary_resistance_ohm(g) / transformer_dc_headroom_a(g))
+    i_set = abs(v_dc) / transformer_primary_resistance_ohm(g)
+    head = transformer_dc_headroom_a(g)
+    details.update({"settled_dc_a": i_set, "headroom_a": head, "transformer": g.name})
+    m = _margin(i_set, head)
+    base = (f"At {_fmt_setting(r)} the dimmer leaves {abs(v_dc):.2f} V DC on the load, which settles to "
+            f"{1000 * i_set:.0f} mA DC in {g.name}'s primary against {1000 * head:.0f} mA that takes its core to saturation")
+    if ratio > 1.0 or asym > DC_ASYMMETRY_FAIL_PCT:
+        return _res("dc-offset", Status.FAIL, i_set, head, "A", m,
+                    base + ": the core saturates, hums and overheats.",
+                    remedy="Use a dimmer with symmetric firing made for iron-core transformers, or an electronic transformer.",
+                    sources=("TRADE",), safety=True, details=details)
+    if ratio > 0.5 or asym > DC_ASYMMETRY_CAUTION_PCT:
+        return _res("dc-offset", Status.CAUTION, i_set, head, "A", m, base + ": close to saturation; listen for hum.",
+                    remedy="Use a dimmer with symmetric firing made for iron-core transformers.",
+                    sources=("TRADE",), safety=True, details=details)
+    return _res("dc-offset", Status.PASS, i_set, head, "A", m, base + "; the core stays out of saturation.",
+                sources=("TRADE",), safety=True, details=details)
+
+
+def check_turn_off_surge(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResult:
+    """Trailing edge interrupting an inductive current: dimmer voltage against the clamp."""
+    d = circuit.dimmer
+    if d.edge is Edge.LEADING:
+        return _na("turn-off-surge", "A leading-edge switch turns off at current zero and interrupts no current.",
+                   sources=("TEXTBOOK_TRIAC",), safety=True)
+    if not runs:
+        return _na("turn-off-surge", "No sweep was simulated.", safety=True)
+    worst, peak = max(((r, float(np.max(np.abs(r.result.dimmer_v[r.span])))) for r in runs), key=lambda x: x[1])
+    clamp = d.clamp_voltage_v
+    m = _margin(peak, clamp)
+    details = {"worst_setting": worst.setting, "direction": worst.direction, "mains_peak_v": circuit.supply.peak_v}
+    inductive = any(load_character(g, circuit.supply.frequency_hz) == "inductive" for g in circuit.loads)
+    remedy = ("Use a leading-edge dimmer for iron-core transformer loads." if inductive else
+              "The current cut is the lamps' own surge in the wiring's inductance: put fewer capacitor-input lamps on this dimmer.")
+    if peak >= CLAMP_REACHED * clamp:
+        return _res("turn-off-surge", Status.FAIL, peak, clamp, "V", m,
+                    f"At {_fmt_setting(worst)} cutting the load current drives the dimmer to {peak:.0f} V, into its "
+                    f"{clamp:.0f} V clamp, every half-cycle.",
+                    remedy=remedy,
+                    sources=("TRADE",), safety=True, details=details)
+    status = Status.CAUTION if peak > 0.9 * clamp else Status.PASS
+    return _res("turn-off-surge", status, peak, clamp, "V", m,
+                f"The dimmer voltage peaks at {peak:.0f} V against its {clamp:.0f} V clamp.",
+                sources=("TRADE",), safety=True, details=details)
+
+
+# ---------------------------------------------------------------- what the customer sees
+
+def dimming_curve(runs: Sequence[SettingRun], weights) -> list[dict]:
+    """Light, perceived brightness (square law) and L* per setting, in sweep order."""
+    rows = []
+    for r in runs:
+        lf = r.light_fraction(weights)
+        rows.append({"direction": r.direction, "setting": r.setting, "light_fraction": lf,
+                     "perceived": perceived_brightness(lf), "lightness": cie_lightness(lf),
+                     "stable": bool(r.point.stable) if r.point is not None else _clean(r)})
+    return rows
+
+
+def check_dimming_range(circuit: Circuit, down: Sequence[SettingRun], up: Sequence[SettingRun], weights) -> CheckResult:
+    """Lowest and highest stable light, dead travel, drop-out and pop-on (LRC_ASSIST_DIMMING)."""
+    if not down:
+        return _na("dimming-range", "No sweep was simulated.")
+    curve_d = dimming_curve(down, weights)
+    curve_u = dimming_curve(up, weights)
+    stable_lit = [row for row in curve_d + curve_u if row["stable"] and row["light_fraction"] > LIT_FRACTION]
+    details = {"down": curve_d, "up": curve_u}
+    if not stable_lit:
+        return _res("dimming-range", Status.FAIL, 0.0, 100 * DIM_TARGET_LOW, "%", None,
+                    "There is no setting at which the lamps give steady light.",
+                    remedy="See latching and holding: the dimmer does not work with this load.",
+                    sources=("LRC_ASSIST_DIMMING",), details=details)
+    low = min(stable_lit, key=lambda row: row["light_fraction"])
+    high = max(stable_lit, key=lambda row: row["light_fraction"])
+    # drop-out: the first setting in the down sweep at which the lamps go dark after being lit
+    drop = next((row["setting"] for prev, row in zip(curve_d, curve_d[1:])
+                 if prev["light_fraction"] > LIT_FRACTION >= row["light_fraction"]), None)
+    # pop-on: the first setting in the up sweep at which light appears, and how much
+    pop = next((row for prev, row in zip(curve_u, curve_u[1:])
+                if prev["light_fraction"] <= LIT_FRACTION < row["light_fraction"]), None)
+    settings = sorted({row["setting"] for row in curve_d})
+    dark = [row["setting"] for row in curve_d if row["light_fraction"] <= LIT_FRACTION]
+    span = (max(settings) - min(settings)) if len(settings) > 1 else 1.0
+    step = span / (len(settings) - 1) if len(settings) > 1 else 0.0
+    dead = (max(dark) - min(settings) + step / 2) / span if dark and span > 0 else 0.0
+    hyst = (pop["setting"] - drop) if (pop is not None and drop is not None) else None
+    details.update({"lowest_stable_light": low["light_fraction"], "lowest_stable_setting": low["setting"],
+                    "highest_stable_light": high["light_fraction"], "drop_out_setting": drop,
+                    "pop_on_setting": pop["setting"] if pop else None,
+                    "pop_on_light": pop["light_fraction"] if pop else None,
+                    "hysteresis": hyst, "dead_travel": dead})
+    parts = [f"steady light from {100 * low['light_fraction']:.1f} % (perceived {100 * low['perceived']:.0f} %) "
+             f"to {100 * high['light_fraction']:.0f} % of full"]
+    if drop is not None:
+        parts.append(f"drops out below setting {drop:.2f}")
+    if pop is not None:
+        parts.append(f"comes back on at {pop['setting']:.2f} with {100 * pop['light_fraction']:.1f} % light")
+    if dead > 0:
+        parts.append(f"{100 * dead:.0f} % of the knob travel gives no light")
+    msg = "The lamps give " + "; ".join(parts) + "."
+    lowv = low["light_fraction"]
+    m = _margin(lowv, DIM_TARGET_LOW)
+    problems = []
+    if lowv > DIM_TARGET_LOW:
+        problems.append("they do not dim to 5 %")
+    if high["light_fraction"] < DIM_TARGET_HIGH:
+        problems.append("they do not reach 90 % of full light")
+    if problems:
+        return _res("dimming-range", Status.CAUTION, 100 * lowv, 100 * DIM_TARGET_LOW, "%", m,
+                    msg[:-1] + "; " + " and ".join(problems) + ".",
+                    remedy="A dimmer matched to these lamps (edge, minimum load) usually widens the range.",
+                    sources=("LRC_ASSIST_DIMMING", "IES_HANDBOOK"), details=details)
+    return _res("dimming-range", Status.PASS, 100 * lowv, 100 * DIM_TARGET_LOW, "%", m, msg,
+                sources=("LRC_ASSIST_DIMMING", "IES_HANDBOOK"), details=details)
+
+
+def check_flicker(circuit: Circuit, runs: Sequence[SettingRun], weights) -> CheckResult:
+    """Light modulation per setting (percent flicker, flicker index) and its IEEE 1789 band."""
+    lit = _lit_settings(runs, weights)
+    if not lit:
+        return _na("flicker", "The lamps give no light at any setting.", sources=("IEEE1789_2015",))
+    # The first lit setting of the up sweep is the pop-on from the lamp-out state: its
+    # light is still rising through the analysed span (a start-up, judged by
+    # dimming-range), so it is left out here (engineering choice).
+    up_lit = [r for r in lit if r.direction == "up"]
+    pop_on = min(up_lit, key=lambda r: r.setting) if up_lit else None
+    per = []
+    for r in lit:
+        if r is pop_on and len(lit) > 1:
+            continue
+        x = r.light(weights)
+        half = samples_per_cycle(r.result) // 2
+        # A switch that fired regularly in every analysed half-cycle cannot modulate the
+        # light below the mains frequency; slower content there is a lamp still
+        # settling after the change of setting (engineering choice).
+        fmin = 0.99 * r.result.frequency_hz if _clean(r, circuit.dimmer.edge) else 0.0
+        a = flicker.assess(x, r.sample_rate_hz, drift_period_samples=half, min_frequency_hz=fmin)
+        per.append((r, a))
+    worst_r, worst = max(per, key=lambda p: p[1].low_risk_ratio)
+    lim = flicker.ieee1789_low_risk_pct(worst.deciding_hz) if worst.deciding_hz > 0 else math.inf
+    value = worst.low_risk_ratio * lim if math.isfinite(lim) else worst.percent_flicker
+    details = {"per_setting": [(r.direction, r.setting, a.percent_flicker, a.flicker_index, a.dominant_hz, str(a.band))
+                               for r, a in per],
+               "worst_setting": worst_r.setting, "direction": worst_r.direction,
+               "percent_flicker": worst.percent_flicker, "flicker_index": worst.flicker_index,
+               "dominant_hz": worst.dominant_hz, "deciding_hz": worst.deciding_hz}
+    src = ("IEEE1789_2015", "IES_HANDBOOK")
+    desc = (f"at {_fmt_setting(worst_r)} the light modulates {worst.percent_flicker:.0f} % "
+            f"(flicker index {worst.flicker_index:.3f}, mostly at {worst.dominant_hz:.0f} Hz)")
+    low_f = [(r, a) for r, a in per if a.band is flicker.RiskBand.ELEVATED and a.deciding_hz < 90.0]
+    if low_f:
+        r, a = max(low_f, key=lambda p: p[1].low_risk_ratio)
+        return _res("flicker", Status.FAIL, value, lim, "%", 1.0 - worst.low_risk_ratio,
+                    f"Visible flicker: at {_fmt_setting(r)} the light swings at {a.deciding_hz:.0f} Hz, "
+                    "beyond IEEE 1789's low-risk line.",
+                    remedy="Cure the misfiring first (see latching and holding), then re-check.",
+                    sources=src, details=details)
+    if worst.band is flicker.RiskBand.ELEVATED:
+        return _res("flicker", Status.CAUTION, value, lim, "%", 1.0 - worst.low_risk_ratio,
+                    f"Stroboscopic ripple: {desc}, beyond IEEE 1789's low-risk line at that frequency.",
+                    sources=src, details=details)
+    band = "no-observable-effect" if worst.band is flicker.RiskBand.NO_EFFECT else "low-risk"
+    return _res("flicker", Status.PASS, value, lim, "%", 1.0 - worst.low_risk_ratio,
+                f"At every lit setting the light stays in IEEE 1789's {band} region; worst {desc}.",
+                sources=src, details=details)
+
+
+def regular_runs(runs: Sequence[SettingRun], edge: Edge = Edge.LEADING) -> list[SettingRun]:
+    """Settings at which the switch fired regularly in every analysed half-cycle (the
+    periodic operation a harmonic measurement assumes); all runs that conducted if none."""
+    clean = [r for r in runs if _clean(r, edge)]
+    return clean or [r for r in runs if np.any(np.isfinite(r.half_cycles.firing_angle_deg))]
+
+
+def check_harmonics(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResult:
+    """Line-current harmonics at the worst setting against the applicable IEC 61000-3-2
+    table.  Judged at settings with regular firing: a misfiring current is not periodic
+    and its FFT over a few cycles is not a harmonic measurement (engineering choice)."""
+    ok, why = harmonics.applicability(circuit.supply.voltage_v)
+    if not ok:
+        return _na("harmonics", why + ".", sources=("IEC61000_3_2",))
+    judged = regular_runs(runs, circuit.dimmer.edge)
+    if not judged:
+        return _na("harmonics", "The switch did not conduct at any setting.", sources=("IEC61000_3_2",))
+    cls, cls_why = harmonics.applicable_class()
+    best = None
+    for r in judged:
+        x = r.result.load_a[r.span]
+        h = harmonics.harmonic_rms_a(x, cycles=r.analysed_cycles)
+        j = harmonics.judge(h, cls)
+        if best is None or j.ratio > best[1].ratio:
+            best = (r, j)
+    r, j = best
+    details = {"class": str(cls), "why": cls_why, "worst_setting": r.setting, "direction": r.direction,
+               "order": j.worst_order, "regular_firing": _clean(r, circuit.dimmer.edge)}
+    status = Status.FAIL if j.ratio > 1.0 else Status.PASS
+    verb = "exceeds" if status is Status.FAIL else "is within"
+    return _res("harmonics", status, j.value_a, j.limit_a, "A", 1.0 - j.ratio,
+                f"The worst harmonic, the {j.worst_order}{_ordinal(j.worst_order)} at {_fmt_setting(r)}, is "
+                f"{j.value_a:.3f} A and {verb} the class {cls} limit of {j.limit_a:.2f} A.",
+                remedy=("Split the load over more dimmers or use lamps with power-factor correction."
+                        if status is Status.FAIL else None),
+                sources=("IEC61000_3_2",), details=details)
+
+
+def _ordinal(n: int) -> str:
+    return "th" if 10 <= n % 100 <= 20 else {1: "st", 2: "nd", 3: "rd"}.get(n % 10, "th")
+
+
+def switch_dissipation_w(circuit: Circuit, switch_a: np.ndarray) -> float:
+    """Mean switch loss V_T·|i| + r_T·i² over whole cycles of the switch current [W]."""
+    d = circuit.dimmer
+    i = np.asarray(switch_a, dtype=float)
+    return float(np.mean(d.on_state_voltage_v * np.abs(i) + d.on_state_resistance_ohm * i ** 2))
+
+
+def check_dissipation(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResult:
+    """Heat in the dimmer (switch conduction loss) against its allowance (TRADE)."""
+    if not runs:
+        return _na("dissipation", "No sweep was simulated.", safety=True)
+    d = circuit.dimmer
+    allowance = DISSIPATION_SHARE * d.rated_load_w * derating.derating_factor(d)
+    worst, p = max(((r, switch_dissipation_w(circuit, r.result.dimmer_a[r.span])) for r in runs), key=lambda x: x[1])
+    m = _margin(p, allowance)
+    details = {"worst_setting": worst.setting, "direction": worst.direction}
+    if p > allowance:
+        return _res("dissipation", Status.FAIL, p, allowance, "W", m,
+                    f"The switch dissipates {p:.1f} W at {_fmt_setting(worst)}, more than the {allowance:.1f} W the "
+                    "dimmer box is built to shed.",
+                    remedy="Use a dimmer with a higher rating or reduce the load.",
+                    sources=("TRADE",), safety=True, details=details)
+    return _res("dissipation", Status.PASS, p, allowance, "W", m,
+                f"The switch dissipates at most {p:.1f} W ({_fmt_setting(worst)}) against an allowance of {allowance:.1f} W.",
+                sources=("TRADE",), safety=True, details=details)

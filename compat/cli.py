@@ -1,0 +1,397 @@
+"""The ``dimfit`` console command (DESIGN §6).
+
+    dimfit                       the terminal app on the built-in demo circuit
+    dimfit open FILE             the terminal app on a circuit file
+    dimfit check FILE [--json | --markdown]
+    dimfit simulate FILE [--setting S | --firing-angle DEG] [--cycles N]
+                         [--from cold|steady] [--json | --csv]
+    dimfit sweep FILE [--points N] [--direction up|down|both] [--json]
+    dimfit size FILE [--json]
+    dimfit demo [PATH]           write the demo circuit, then check it
+    dimfit catalogue             the built-in archetypes
+
+Exit codes: 0 done (``check``: suitable, cautions allowed); 1 ``check`` found the
+circuit unsuitable or a site test needed; 2 bad input (one line on stderr, never a
+traceback).  Heavy modules (the simulator, the checks, the terminal app) are imported
+inside the command that needs them, so ``dimfit catalogue`` and bad-input errors are
+quick.  Progress goes to stderr, and only when stderr is a terminal.
+"""
+from __future__ import annotations
+
+import argparse
+import csv
+import json
+import math
+import sys
+import tomllib
+from typing import Sequence
+
+from loads.errors import InputError
+
+PROG = "dimfit"
+DEFAULT_DEMO_PATH = "dimfit-demo.toml"
+# One-line form of the cautions for outputs that show figures without a verdict.
+FIGURES_NOTE = ("Figures are model estimates. Mains work only by qualified persons: isolate and prove dead; "
+                "local wiring rules and makers' instructions take precedence.")
+
+
+class UsageError(Exception):
+    """A bad command line (reported in one line, exit 2)."""
+
+
+class _Parser(argparse.ArgumentParser):
+    def error(self, message: str):  # argparse's hook: raise instead of printing usage and exiting
+        command = self.prog.partition(" ")[2]
+        raise UsageError(f"{command}: {message}" if command else message)
+
+
+def _one_line(message: str) -> str:
+    return " ".join(str(message).split("\n")).replace("\r", " ")
+
+
+def _fail(message: str) -> int:
+    print(f"{PROG}: error: {_one_line(message)}", file=sys.stderr)
+    return 2
+
+
+def _read(path: str):
+    from loads.files import read_circuit
+
+    return read_circuit(path)
+
+
+def _progress(label: str):
+    """A progress callback drawing on stderr when it is a terminal, else None."""
+    if not sys.stderr.isatty():
+        return None
+
+    def report(done: int, total: int) -> None:
+        end = "\n" if done >= total else ""
+        print(f"\r{label}: {done}/{total}", end=end, file=sys.stderr, flush=True)
+
+    return report
+
+
+def _finite(x) -> float | None:
+    if x is None:
+        return None
+    x = float(x)
+    return x if math.isfinite(x) else None
+
+
+# --------------------------------------------------------------------------- check
+
+def _check_and_print(circuit, *, as_json: bool = False, as_markdown: bool = False) -> int:
+    try:
+        from compat.evaluate import evaluate
+        from compat.render import render_markdown, render_table
+    except ImportError as err:
+        return _fail(f"the checks are not available in this installation ({err})")
+    from compat.report import Verdict
+
+    report = evaluate(circuit, progress=_progress("checking"))
+    if as_json:
+        print(json.dumps(report.to_json(), indent=2, allow_nan=False, default=_json_default))
+    elif as_markdown:
+        print(render_markdown(report, circuit))
+    else:
+        print(render_table(report))
+    return 0 if report.verdict in (Verdict.SUITABLE, Verdict.SUITABLE_WITH_CAUTIONS) else 1
+
+
+def _json_default(obj):
+    if hasattr(obj, "tolist"):
+        return obj.tolist()
+    if hasattr(obj, "value"):
+        return obj.value
+    raise TypeError(f"not JSON serialisable: {type(obj).__name__}")
+
+
+def cmd_check(args) -> int:
+    circuit = _read(args.file)
+    return _check_and_print(circuit, as_json=args.json, as_markdown=args.markdown)
+
+
+# ------------------------------------------------------------------------ simulate
+
+def _angles(values, fired) -> list[float | None]:
+    return [(_finite(v) if f else None) for v, f in zip(values, fired)]
+
+
+def simulation_json(circuit, result, *, start: str) -> dict:
+    """The DESIGN §6 JSON of one simulation."""
+    import numpy as np
+
+    hc = result.half_cycles
+    fired = [math.isfinite(float(a)) for a in hc.firing_angle_deg]
+    last = result.last_cycle()
+    return {
+        "schema": 1,
+        "circuit": circuit.name,
+        "setting": result.setting,
+        "forced_firing_angle_deg": result.forced_firing_angle_deg,
+        "start": start,
+        "frequency_hz": result.frequency_hz,
+        "half_cycles": len(hc),
+        "firing_angle_deg": _angles(hc.firing_angle_deg, fired),
+        "extinction_angle_deg": _angles(hc.extinction_angle_deg, fired),
+        "peak_current_a": _angles(hc.peak_current_a, fired),
+        "load_rms_v": last["load_rms_v"],
+        "load_rms_a": last["load_rms_a"],
+        "power_w": last["power_w"],
+        "i2t_a2s": _finite(hc.i2t_a2s[0]),
+        "t_s": np.asarray(result.t_s, dtype=float).tolist(),
+        "supply_v": np.asarray(result.supply_v, dtype=float).tolist(),
+        "load_v": np.asarray(result.load_v, dtype=float).tolist(),
+        "load_a": np.asarray(result.load_a, dtype=float).tolist(),
+        "dimmer_a": np.asarray(result.dimmer_a, dtype=float).tolist(),
+    }
+
+
+def _simulation_table(circuit, result, *, start: str) -> str:
+    hc = result.half_cycles
+    what = (f"firing angle {result.forced_firing_angle_deg:g}°" if result.forced_firing_angle_deg is not None
+            else f"setting {result.setting:g}" if result.setting is not None else "full setting")
+    lines = [f"{circuit.name} — {what}, {len(hc) // 2} cycles from {start}", ""]
+    lines.append(f"{'half':>4} {'pol':>3} {'fired °':>8} {'ends °':>8} {'peak A':>8} {'I²t A²s':>9} "
+                 f"{'load V':>7} {'load A':>7} {'power W':>8}")
+
+    def cell(x, width, fmt):
+        return f"{'—':>{width}}" if x is None or not math.isfinite(float(x)) else f"{float(x):>{width}{fmt}}"
+
+    for i in range(len(hc)):
+        fired = math.isfinite(float(hc.firing_angle_deg[i]))
+        lines.append(f"{i + 1:>4} {'+' if hc.polarity[i] > 0 else '-':>3} "
+                     f"{cell(hc.firing_angle_deg[i] if fired else None, 8, '.1f')} "
+                     f"{cell(hc.extinction_angle_deg[i] if fired else None, 8, '.1f')} "
+                     f"{cell(hc.peak_current_a[i], 8, '.3f')} {cell(hc.i2t_a2s[i], 9, '.4f')} "
+                     f"{cell(hc.load_rms_v[i], 7, '.1f')} {cell(hc.load_rms_a[i], 7, '.3f')} "
+                     f"{cell(hc.power_w[i], 8, '.1f')}")
+    last = result.last_cycle()
+    lines += ["",
+              f"last full cycle: load {last['load_rms_v']:.1f} V rms, {last['load_rms_a']:.3f} A rms, "
+              f"{last['power_w']:.1f} W",
+              f"first half-cycle: I²t {float(hc.i2t_a2s[0]):.4g} A²s, peak {float(hc.peak_current_a[0]):.3g} A",
+              "", FIGURES_NOTE]
+    return "\n".join(lines)
+
+
+def cmd_simulate(args) -> int:
+    if args.setting is not None and not 0.0 <= args.setting <= 1.0:
+        return _fail(f"simulate: --setting {args.setting:g} is outside 0–1 (1 is brightest)")
+    if args.firing_angle is not None and not 0.0 <= args.firing_angle <= 180.0:
+        return _fail(f"simulate: --firing-angle {args.firing_angle:g} is outside 0–180°")
+    if not 1 <= args.cycles <= 1000:
+        return _fail(f"simulate: --cycles {args.cycles} is outside 1–1000")
+    circuit = _read(args.file)
+    try:
+        from loads.simulation import simulate
+    except ImportError as err:
+        return _fail(f"the simulator is not available in this installation ({err})")
+    result = simulate(circuit, setting=args.setting, firing_angle_deg=args.firing_angle,
+                      cycles=args.cycles, start=args.start)
+    if args.json:
+        print(json.dumps(simulation_json(circuit, result, start=args.start), allow_nan=False))
+    elif args.csv:
+        writer = csv.writer(sys.stdout, lineterminator="\n")
+        writer.writerow(["t_s", "supply_v", "load_v", "load_a", "dimmer_a"])
+        for row in zip(result.t_s, result.supply_v, result.load_v, result.load_a, result.dimmer_a):
+            writer.writerow([f"{float(x):.9g}" for x in row])
+    else:
+        print(_simulation_table(circuit, result, start=args.start))
+    return 0
+
+
+# --------------------------------------------------------------------------- sweep
+
+def sweep_row(point) -> dict:
+    """One sweep point with the DESIGN §6 sweep keys (plus the switch's counters)."""
+    return {"direction": point.direction, "setting": _finite(point.setting),
+            "firing_angle_deg": _finite(point.firing_angle_deg),
+            "conduction_angle_deg": _finite(point.conduction_angle_deg),
+            "load_rms_v": _finite(point.load_rms_v), "load_rms_a": _finite(point.load_rms_a),
+            "power_w": _finite(point.power_w), "light_fraction": _finite(point.light_fraction),
+            "stable": bool(point.stable), "fired_fraction": _finite(point.fired_fraction),
+            "failed_latches": int(point.failed_latches), "early_dropouts": int(point.early_dropouts),
+            "refirings": int(point.refirings)}
+
+
+def cmd_sweep(args) -> int:
+    if not 2 <= args.points <= 1001:
+        return _fail(f"sweep: --points {args.points} is outside 2–1001")
+    circuit = _read(args.file)
+    try:
+        from loads.simulation import sweep
+    except ImportError as err:
+        return _fail(f"the simulator is not available in this installation ({err})")
+    ascending = [i / (args.points - 1) for i in range(args.points)]
+    directions = ["down", "up"] if args.direction == "both" else [args.direction]
+    rows = []
+    for direction in directions:
+        settings = list(reversed(ascending)) if direction == "down" else ascending
+        points = sweep(circuit, settings, direction, progress=_progress(f"sweep {direction}"))
+        rows += [sweep_row(p) for p in points]
+    if args.json:
+        print(json.dumps({"schema": 1, "circuit": circuit.name, "sweep": rows}, indent=2, allow_nan=False))
+        return 0
+
+    def cell(x, width, fmt):
+        return f"{'—':>{width}}" if x is None else f"{x:>{width}{fmt}}"
+
+    lines = [circuit.name, "", f"{'dir':<5} {'setting':>7} {'fired °':>8} {'conducts °':>10} {'load V':>7} "
+             f"{'load A':>7} {'power W':>8} {'light %':>8}  stable"]
+    for r in rows:
+        light = None if r["light_fraction"] is None else 100.0 * r["light_fraction"]
+        lines.append(f"{r['direction']:<5} {r['setting']:>7.3f} {cell(r['firing_angle_deg'], 8, '.1f')} "
+                     f"{cell(r['conduction_angle_deg'], 10, '.1f')} {cell(r['load_rms_v'], 7, '.1f')} "
+                     f"{cell(r['load_rms_a'], 7, '.3f')} {cell(r['power_w'], 8, '.1f')} {cell(light, 8, '.1f')}  "
+                     f"{'yes' if r['stable'] else 'NO'}")
+    lines += ["", FIGURES_NOTE]
+    print("\n".join(lines))
+    return 0
+
+
+# ---------------------------------------------------------------------------- size
+
+def cmd_size(args) -> int:
+    circuit = _read(args.file)
+    try:
+        from compat.render import render_sizing
+        from compat.sizing import size
+    except ImportError as err:
+        return _fail(f"sizing is not available in this installation ({err})")
+    result = size(circuit, progress=_progress("sizing"))
+    if args.json:
+        print(json.dumps(result, indent=2, allow_nan=False, default=_json_default))
+    else:
+        print(render_sizing(result))
+    return 0
+
+
+# ------------------------------------------------------------------ demo, catalogue
+
+def cmd_demo(args) -> int:
+    from loads.catalogue import demo_circuit, demo_text
+    from loads.files import write_text_atomic
+
+    circuit = demo_circuit()
+    write_text_atomic(args.path, demo_text(), overwrite=False)
+    print(f"wrote the demo circuit to {args.path}", file=sys.stderr)
+    code = _check_and_print(circuit)
+    # The demo's job is done once its check is shown, whatever the verdict.
+    return 0 if code in (0, 1) else code
+
+
+def _summary(obj) -> str:
+    from loads.dimmer import Dimmer
+
+    if isinstance(obj, Dimmer):
+        return f"{obj.edge.value} edge, {obj.wiring.value}, {obj.control.value}, {obj.rated_load_w:g} W, min {obj.min_load_w:g} W"
+    return f"{obj.kind.value}, {obj.rated_power_w:g} W {obj.rated_voltage_v:g} V"
+
+
+def cmd_catalogue(args) -> int:
+    from loads.catalogue import list_archetypes
+
+    items = list_archetypes()
+    width = max(len(a.name) for a in items)
+    print("Built-in archetypes (invented and generic, not real products):")
+    for a in items:
+        print(f"  {a.kind:<6}  {a.name:<{width}}  {_summary(a.object)}")
+    return 0
+
+
+# ------------------------------------------------------------------------ open/tui
+
+def cmd_open(args) -> int:
+    path = getattr(args, "file", None)
+    if path is not None:
+        _read(path)                      # bad input: one line, exit 2, before the app starts
+    try:
+        from tui.app import run
+    except ImportError as err:
+        return _fail(f"the terminal app is not available in this installation ({err})")
+    result = run(path)
+    return result if isinstance(result, int) else 0
+
+
+# ---------------------------------------------------------------------------- main
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = _Parser(prog=PROG, description="Will this phase-cut dimmer work, safely, with these lamps?")
+    sub = parser.add_subparsers(dest="command", parser_class=_Parser)
+
+    p = sub.add_parser("open", help="open the terminal app on a circuit file")
+    p.add_argument("file")
+    p.set_defaults(func=cmd_open)
+
+    p = sub.add_parser("check", help="run all checks on a circuit file")
+    p.add_argument("file")
+    g = p.add_mutually_exclusive_group()
+    g.add_argument("--json", action="store_true", help="machine-readable report")
+    g.add_argument("--markdown", action="store_true", help="report as Markdown")
+    p.set_defaults(func=cmd_check)
+
+    p = sub.add_parser("simulate", help="waveforms at one setting or firing angle")
+    p.add_argument("file")
+    g = p.add_mutually_exclusive_group()
+    g.add_argument("--setting", type=float, help="control setting 0–1 (1 is brightest)")
+    g.add_argument("--firing-angle", type=float, metavar="DEG", help="force the firing angle [deg]")
+    p.add_argument("--cycles", type=int, default=10, help="mains cycles to simulate (default 10)")
+    p.add_argument("--from", dest="start", choices=("cold", "steady"), default="cold",
+                   help="cold: filaments cold, capacitors empty (default); steady: periodic state")
+    g = p.add_mutually_exclusive_group()
+    g.add_argument("--json", action="store_true")
+    g.add_argument("--csv", action="store_true", help="columns t_s,supply_v,load_v,load_a,dimmer_a")
+    p.set_defaults(func=cmd_simulate)
+
+    p = sub.add_parser("sweep", help="the dimming curve across the control range")
+    p.add_argument("file")
+    p.add_argument("--points", type=int, default=21, help="settings from 0 to 1 (default 21)")
+    p.add_argument("--direction", choices=("up", "down", "both"), default="down")
+    p.add_argument("--json", action="store_true")
+    p.set_defaults(func=cmd_sweep)
+
+    p = sub.add_parser("size", help="lamp-count limits and load-correction sizing")
+    p.add_argument("file")
+    p.add_argument("--json", action="store_true")
+    p.set_defaults(func=cmd_size)
+
+    p = sub.add_parser("demo", help="write the demo circuit to a file and check it")
+    p.add_argument("path", nargs="?", default=DEFAULT_DEMO_PATH, help=f"(default {DEFAULT_DEMO_PATH})")
+    p.set_defaults(func=cmd_demo)
+
+    p = sub.add_parser("catalogue", help="list the built-in archetypes")
+    p.set_defaults(func=cmd_catalogue)
+    return parser
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Run the command line; returns the exit code."""
+    parser = build_parser()
+    try:
+        args = parser.parse_args(argv)
+        if args.command is None:
+            return cmd_open(argparse.Namespace(file=None))
+        return args.func(args)
+    except UsageError as err:
+        return _fail(f"{err} (see {PROG} --help)")
+    except SystemExit as exc:            # --help and friends
+        code = exc.code
+        return code if isinstance(code, int) else (0 if code is None else 2)
+    except InputError as err:
+        return _fail(str(err))
+    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as err:
+        return _fail(str(err))
+    except OSError as err:
+        if isinstance(err, BrokenPipeError):
+            return 0
+        where = f"{err.filename}: " if err.filename else ""
+        return _fail(f"{where}{err.strerror or err}")
+    except KeyboardInterrupt:
+        print(f"{PROG}: interrupted", file=sys.stderr)
+        return 130
+
+
+if __name__ == "__main__":
+    sys.exit(main())

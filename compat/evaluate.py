@@ -1,0 +1,292 @@
+"""Run every simulation a check needs, once, and judge the circuit.
+
+``evaluate`` walks the control range down (from the steady state at full) and up (from
+the lamp-out state), keeping each setting's full simulated result so that the switch
+checks (latching, holding, peaks, DC, spike, dissipation, harmonics, flicker) read the
+same half-cycles and waveforms the dimming curve came from; it adds cold switch-on runs
+across the switch-on angle and one off-state run.  Inputs given as ranges are
+evaluated at each end; a check whose result flips between pass and fail names the
+deciding input and the verdict becomes ``site-test-needed``.
+"""
+from __future__ import annotations
+
+import dataclasses
+import re
+from collections.abc import Callable
+from threading import Event
+
+import numpy as np
+
+from compat import checks as ck
+from compat.report import CheckResult, Report, Status
+from compat.runs import Evidence, SettingRun
+from compat.verdict import attached_cautions, overall
+from loads.circuit import Circuit
+from loads.errors import InputError
+
+MIN_SETTINGS = 21                  # brief: at least 21 settings per direction
+# The same walk as loads.simulation.sweep (engineering choice there: 6 cycles per
+# point, the last 3 analysed, 200 samples per cycle); kept equal so rows match `dimfit sweep`.
+CYCLES_PER_POINT = 6
+ANALYSED_CYCLES = 3
+SWEEP_SAMPLES_PER_CYCLE = 200
+# Engineering choice: switch-on angles 0–180° in 30° steps (the other half-cycle mirrors).
+INRUSH_ANGLES_DEG = (0.0, 30.0, 60.0, 90.0, 120.0, 150.0, 180.0)
+INRUSH_CYCLES = 2
+INRUSH_SAMPLES_PER_CYCLE = 200
+# Engineering choice: one second at 50 Hz off-state, the first fifth discarded as the
+# cold-start transient; long enough to see a bus that charges and flashes a few times
+# a second.  Slower flashes are reported as "at least once" or missed.
+OFF_CYCLES = 50
+OFF_ANALYSED_CYCLES = 40
+OFF_SAMPLES_PER_CYCLE = 100
+# Engineering choice: harmonics up to the 40th of a current with jumps need a fine grid
+# (at 200 samples/cycle orders 160–240 alias onto 40–0); the worst sweep setting is
+# re-run from its own end state at this resolution for the harmonics check.
+HARMONICS_SAMPLES_PER_CYCLE = 4000
+HARMONICS_CYCLES = 2
+# Engineering choice: evaluate each range input at its two ends with the others at
+# their midpoint (1 + 2k runs) rather than all 2^k corners, to keep the check quick.
+RANGE_MODE = "one-at-a-time"
+
+SWEEP_KEYS = ("direction", "setting", "firing_angle_deg", "conduction_angle_deg", "load_rms_v", "load_rms_a",
+              "power_w", "light_fraction", "stable")
+
+
+class Cancelled(Exception):
+    """The caller's cancel event was set during an evaluation."""
+
+
+def _default_simulator():
+    from loads import simulation
+    return simulation
+
+
+def settings_grid(n: int) -> list[float]:
+    """n settings evenly over 0..1 (n ≥ 2) [1]."""
+    return [float(x) for x in np.linspace(0.0, 1.0, max(int(n), 2))]
+
+
+def walk(circuit: Circuit, settings: list[float], direction: str, sim, *, tick=None, cancel=None) -> tuple[SettingRun, ...]:
+    """The sweep in one direction, keeping every setting's result."""
+    order = sorted(settings, reverse=(direction == "down"))
+    weights = sim.reference_light_weights(circuit)
+    wsum = float(np.sum(weights))
+    state: object = "steady" if direction == "down" else "off"
+    runs = []
+    for s in order:
+        if cancel is not None and cancel.is_set():
+            raise Cancelled()
+        res = sim.simulate(circuit, setting=s, cycles=CYCLES_PER_POINT, start=state,
+                           samples_per_cycle=SWEEP_SAMPLES_PER_CYCLE)
+        state = res.final_state
+        point = sim._sweep_point(res, direction, s, ANALYSED_CYCLES, weights, wsum)
+        runs.append(SettingRun(direction=direction, setting=s, result=res, analysed_cycles=ANALYSED_CYCLES, point=point))
+        if tick:
+            tick()
+    return tuple(runs)
+
+
+def switch_on_runs(circuit: Circuit, sim, *, tick=None, cancel=None) -> tuple:
+    """Cold starts at setting 1 across the switch-on angle: ((angle [deg], result), ...)."""
+    out = []
+    for a in INRUSH_ANGLES_DEG:
+        if cancel is not None and cancel.is_set():
+            raise Cancelled()
+        out.append((a, sim.simulate(circuit, setting=1.0, cycles=INRUSH_CYCLES, start="cold", switch_on_deg=a,
+                                    samples_per_cycle=INRUSH_SAMPLES_PER_CYCLE)))
+        if tick:
+            tick()
+    return tuple(out)
+
+
+def switch_on_peak_a(circuit: Circuit, sim=None) -> float:
+    """Worst whole-circuit switch-on line-current peak over the switch-on angles [A]."""
+    sim = sim or _default_simulator()
+    return max(float(np.max(r.half_cycles.peak_line_current_a)) for _, r in switch_on_runs(circuit, sim))
+
+
+def gather(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress=None, cancel=None, simulator=None) -> Evidence:
+    """Every simulation the checks need, for one circuit (no ranges)."""
+    sim = simulator or _default_simulator()
+    grid = settings_grid(max(settings, MIN_SETTINGS))
+    total = 2 * len(grid) + len(INRUSH_ANGLES_DEG) + 1
+    done = [0]
+
+    def tick():
+        done[0] += 1
+        if progress is not None:
+            progress(done[0], total)
+
+    down = walk(circuit, grid, "down", sim, tick=tick, cancel=cancel)
+    up = walk(circuit, grid, "up", sim, tick=tick, cancel=cancel)
+    inrush = switch_on_runs(circuit, sim, tick=tick, cancel=cancel)
+    if cancel is not None and cancel.is_set():
+        raise Cancelled()
+    off = sim.simulate(circuit, setting=0.0, no_firing=True, start="cold", cycles=OFF_CYCLES,
+                       samples_per_cycle=OFF_SAMPLES_PER_CYCLE)
+    tick()
+    w = np.asarray(sim.reference_light_weights(circuit), dtype=float)
+    w = w / w.sum() if w.sum() > 0 else w
+    fine = harmonics_run(circuit, down + up, sim)
+    return Evidence(circuit=circuit, down=down, up=up, inrush=inrush, off=off, light_weights=w,
+                    harmonics=(fine,) if fine is not None else ())
+
+
+def harmonics_run(circuit: Circuit, runs, sim) -> SettingRun | None:
+    """The sweep setting with the worst class A harmonic ratio on the coarse grid,
+    re-run on a fine grid from its own end state (None if nothing conducted)."""
+    from compat import harmonics as hm
+    best = None
+    for r in ck.regular_runs(runs, circuit.dimmer.edge):
+        h = hm.harmonic_rms_a(r.result.load_a[r.span], cycles=r.analysed_cycles)
+        ratio = hm.judge(h, hm.HarmonicClass.A).ratio
+        if best is None or ratio > best[0]:
+            best = (ratio, r)
+    if best is None:
+        return None
+    r = best[1]
+    res = sim.simulate(circuit, setting=r.setting, cycles=HARMONICS_CYCLES, start=r.result.final_state,
+                       samples_per_cycle=HARMONICS_SAMPLES_PER_CYCLE)
+    return SettingRun(direction=r.direction, setting=r.setting, result=res, analysed_cycles=HARMONICS_CYCLES,
+                      point=r.point)
+
+
+def judge(ev: Evidence, *, breaker_counts: dict[str, int] | None = None) -> list[CheckResult]:
+    """All checks of DESIGN §4, in the table's order."""
+    c, w = ev.circuit, ev.light_weights
+    runs = ev.runs
+    return [
+        ck.check_rating(c),
+        ck.check_minimum_load(c),
+        ck.check_edge_match(c),
+        ck.check_latching(c, runs, w),
+        ck.check_holding(c, runs, w),
+        ck.check_repetitive_peak(c, runs),
+        ck.check_inrush(c, ev.inrush),
+        ck.check_breaker(c, ev.inrush, breaker_counts),
+        ck.check_off_state(c, ev.off, OFF_ANALYSED_CYCLES),
+        ck.check_dc_offset(c, runs),
+        ck.check_turn_off_surge(c, runs),
+        ck.check_dimming_range(c, ev.down, ev.up, w),
+        ck.check_flicker(c, runs, w),
+        ck.check_harmonics(c, ev.harmonics or runs),
+        ck.check_dissipation(c, runs),
+    ]
+
+
+def sweep_rows(ev: Evidence) -> tuple[dict, ...]:
+    """Report.sweep rows with the DESIGN §6 keys."""
+    rows = []
+    for r in ev.runs:
+        p = r.point
+        rows.append({"direction": p.direction, "setting": p.setting, "firing_angle_deg": p.firing_angle_deg,
+                     "conduction_angle_deg": p.conduction_angle_deg, "load_rms_v": p.load_rms_v,
+                     "load_rms_a": p.load_rms_a, "power_w": p.power_w, "light_fraction": p.light_fraction,
+                     "stable": bool(p.stable)})
+    return tuple(rows)
+
+
+# ---------------------------------------------------------------- ranges
+
+_PART = re.compile(r"([A-Za-z_]\w*)(?:\[(\d+)\])?")
+
+
+def set_path(obj, path: str, value):
+    """A copy of a frozen dataclass tree with the field at a dotted path (``loads[1].x``) set."""
+    head, _, rest = path.partition(".")
+    m = _PART.fullmatch(head)
+    if m is None or not dataclasses.is_dataclass(obj) or not hasattr(obj, m.group(1)):
+        raise InputError(f"cannot follow the path {path!r}", key=path)
+    name, idx = m.group(1), m.group(2)
+    cur = getattr(obj, name)
+    if idx is not None:
+        seq = list(cur)
+        i = int(idx)
+        if not 0 <= i < len(seq):
+            raise InputError(f"index {i} is out of range", key=path)
+        seq[i] = set_path(seq[i], rest, value) if rest else _like(seq[i], value)
+        new = tuple(seq)
+    else:
+        new = set_path(cur, rest, value) if rest else _like(cur, value)
+    return dataclasses.replace(obj, **{name: new})
+
+
+def _like(old, value):
+    if isinstance(old, bool):
+        return bool(value)
+    if isinstance(old, int):
+        return int(round(value))
+    return float(value)
+
+
+_RANK = {Status.FAIL: 3, Status.CAUTION: 2, Status.PASS: 1, Status.NOT_APPLICABLE: 0}
+
+
+def _worse(a: CheckResult, b: CheckResult) -> CheckResult:
+    ka = (_RANK[a.status], -(a.margin if a.margin is not None else 0.0))
+    kb = (_RANK[b.status], -(b.margin if b.margin is not None else 0.0))
+    return a if ka >= kb else b
+
+
+def combine(nominal: list[CheckResult], cases: list[tuple[str, list[CheckResult]]]) -> list[CheckResult]:
+    """Worst case per check over the nominal circuit and every range end (``cases``:
+    (file key of the range input, results at one end)).  Where the outcomes straddle
+    fail and not-fail, the result names the deciding input: the first range whose two
+    ends disagree (or, failing that, the first whose end fails)."""
+    out = []
+    for i, base in enumerate(nominal):
+        outcomes = [base] + [res[i] for _, res in cases]
+        worst = outcomes[0]
+        for o in outcomes[1:]:
+            worst = _worse(worst, o)
+        fails = [o.status is Status.FAIL for o in outcomes]
+        if worst.status is Status.FAIL and not all(fails):
+            by_key: dict[str, list[bool]] = {}
+            for key, res in cases:
+                by_key.setdefault(key, []).append(res[i].status is Status.FAIL)
+            deciding = next((k for k, f in by_key.items() if any(f) and not all(f)), None)
+            if deciding is None:
+                deciding = next((k for k, f in by_key.items() if any(f)), cases[0][0])
+            worst = dataclasses.replace(worst, deciding_input=deciding,
+                                        message=worst.message + f" This turns on {deciding}: test on site.")
+        out.append(worst)
+    return out
+
+
+def evaluate(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress: Callable[[int, int], None] | None = None,
+             cancel: Event | None = None, simulator=None) -> Report:
+    """Simulate and judge ``circuit``; the report carries every check, the dimming curve
+    (rows with the DESIGN §6 keys) and the safety cautions."""
+    sim = simulator or _default_simulator()
+    base = dataclasses.replace(circuit, ranges=())
+    n_cases = 1 + 2 * len(circuit.ranges)
+    per_case = 2 * max(settings, MIN_SETTINGS) + len(INRUSH_ANGLES_DEG) + 1
+    offset = [0]
+
+    def prog(done, total):
+        if progress is not None:
+            progress(offset[0] + done, n_cases * per_case)
+
+    ev = gather(base, settings=settings, progress=prog, cancel=cancel, simulator=sim)
+    nominal = _judge_with_breaker(ev, sim)
+    cases = []
+    for rg in circuit.ranges:
+        for end in (rg.low, rg.high):
+            offset[0] += per_case
+            corner = set_path(base, rg.path, end)
+            cev = gather(corner, settings=settings, progress=prog, cancel=cancel, simulator=sim)
+            cases.append((rg.file_key, _judge_with_breaker(cev, sim)))
+    results = combine(nominal, cases) if cases else nominal
+    return Report(circuit=circuit.name, verdict=overall(results), checks=tuple(results), sweep=sweep_rows(ev),
+                  cautions=attached_cautions())
+
+
+def _judge_with_breaker(ev: Evidence, sim) -> list[CheckResult]:
+    res = judge(ev)
+    b = next(r for r in res if r.id == "breaker")
+    if b.status is Status.FAIL:
+        from compat.sizing import breaker_max_counts
+        counts = breaker_max_counts(ev.circuit, simulator=sim)
+        res = [ck.check_breaker(ev.circuit, ev.inrush, counts) if r.id == "breaker" else r for r in res]
+    return res

@@ -1,0 +1,218 @@
+"""Remedies found by searching the simulation (DESIGN §4, remedies and sizing).
+
+* lamp counts: for each group, the fewest and the most units that pass, by bisection
+  on the count — the checks that fail with too few lamps (minimum load, latching,
+  holding, off-state, dimming range, flicker) and those that fail with too many
+  (rating, peaks, inrush, breaker, harmonics, dissipation) are searched separately;
+* load-correction device: the smallest series R–C (a ``Linear`` with
+  ``series_capacitance_f`` in ``Circuit.correction``) that makes a failing circuit
+  pass, found by bisection on the capacitance in log scale, with its loss;
+* the dimmer edge that would pass, and the derated rating the load needs;
+* the breaker curve whose instantaneous band holds the switch-on surge, and how many
+  units of each group a given breaker holds.
+
+The search runs a coarser sweep than ``evaluate`` (``SEARCH_SETTINGS`` points) and the
+answer is then confirmed by a full ``evaluate``.
+"""
+from __future__ import annotations
+
+import dataclasses
+import math
+
+import numpy as np
+
+from compat import breaker_band, derating
+from compat.evaluate import evaluate, gather, judge, switch_on_peak_a
+from compat.report import Status, Verdict
+from loads.circuit import Circuit
+from loads.dimmer import Control, Edge
+from loads.linear import Linear
+
+# Engineering choice: 11 settings are enough to find where a count starts to fail; the
+# final answer is confirmed with the full evaluation.
+SEARCH_SETTINGS = 11
+LOW_SIDE = ("minimum-load", "latching", "holding", "off-state", "dimming-range", "flicker")
+HIGH_SIDE = ("rating", "repetitive-peak", "inrush", "breaker", "harmonics", "dissipation")
+MAX_COUNT = 500                           # loads.load: count is 1–500
+# Correction device (engineering choice): the resistor limits the spike each time the
+# switch fires into the capacitor to about 1 A at the mains peak, and the capacitance
+# is searched between 10 nF and 10 µF.
+CORRECTION_SPIKE_A = 1.0
+CORRECTION_C_RANGE_F = (10e-9, 10e-6)
+CORRECTION_REL_TOL = 0.05                 # engineering choice: 5 % on the capacitance
+PREFERRED_C_F = (10e-9, 15e-9, 22e-9, 33e-9, 47e-9, 68e-9)   # E6 series (common practice, no source)
+
+
+def _failing(circuit: Circuit, ids, simulator=None, settings=SEARCH_SETTINGS) -> list[str]:
+    ev = gather(circuit, settings=settings, simulator=simulator)
+    return [r.id for r in judge(ev) if r.status is Status.FAIL and r.id in ids]
+
+
+def _with_count(circuit: Circuit, index: int, n: int) -> Circuit:
+    loads = list(circuit.loads)
+    loads[index] = dataclasses.replace(loads[index], count=int(n))
+    return dataclasses.replace(circuit, loads=tuple(loads), ranges=())
+
+
+def _max_passing(ok, lo: int, hi: int) -> int:
+    """Largest n in [lo, hi] with ok(n), given ok is true then false; lo-1 if none."""
+    if not ok(lo):
+        return lo - 1
+    good, n = lo, lo
+    while True:                        # grow until it fails or hits hi
+        n = min(hi, 2 * n)
+        if not ok(n):
+            bad = n
+            break
+        good = n
+        if n == hi:
+            return hi
+    while bad - good > 1:
+        mid = (good + bad) // 2
+        if ok(mid):
+            good = mid
+        else:
+            bad = mid
+    return good
+
+
+def _min_passing(ok, lo: int, hi: int) -> int | None:
+    """Smallest n in [lo, hi] with ok(n), given ok is false then true; None if none."""
+    if not ok(hi):
+        return None
+    if ok(lo):
+        return lo
+    bad, good = lo, hi
+    while good - bad > 1:
+        mid = (good + bad) // 2
+        if ok(mid):
+            good = mid
+        else:
+            bad = mid
+    return good
+
+
+def breaker_max_counts(circuit: Circuit, simulator=None) -> dict[str, int]:
+    """For each lamp group, the most units (others unchanged) whose worst switch-on
+    surge stays below the breaker's no-trip current (IEC60898_1 band, as peak)."""
+    b = circuit.breaker
+    if b is None:
+        return {}
+    lo_peak, _ = breaker_band.band_peak_a(b)
+    out = {}
+    for i, g in enumerate(circuit.loads):
+        def ok(n, i=i):
+            return switch_on_peak_a(_with_count(circuit, i, n), simulator) < lo_peak
+        out[g.name] = _max_passing(ok, 1, MAX_COUNT)
+    return out
+
+
+def count_limits(circuit: Circuit, simulator=None, progress=None) -> dict[str, dict]:
+    """Fewest and most units of each group that pass, the other groups unchanged."""
+    out = {}
+    for i, g in enumerate(circuit.loads):
+        def low_ok(n, i=i):
+            return not _failing(_with_count(circuit, i, n), LOW_SIDE, simulator)
+
+        def high_ok(n, i=i):
+            return not _failing(_with_count(circuit, i, n), HIGH_SIDE, simulator)
+
+        most = _max_passing(high_ok, 1, MAX_COUNT)
+        fewest = _min_passing(low_ok, 1, max(most, 1)) if most >= 1 else None
+        out[g.name] = {"count": g.count, "fewest": fewest, "most": most if most >= 1 else None,
+                       "passes": fewest is not None and most >= 1 and fewest <= most}
+        if progress:
+            progress(i + 1, len(circuit.loads))
+    return out
+
+
+def correction_device(circuit: Circuit, capacitance_f: float) -> Linear:
+    """A series R–C load-correction device of the given capacitance [F]."""
+    r = circuit.supply.peak_v / CORRECTION_SPIKE_A
+    return Linear(name="load-correction device", count=1, rated_power_w=1.0,
+                  rated_voltage_v=circuit.supply.voltage_v, resistance_ohm=r, series_capacitance_f=capacitance_f)
+
+
+def _round_up_preferred(c: float) -> float:
+    decade = 10 ** math.floor(math.log10(c / 10e-9)) if c > 0 else 1.0
+    for base in PREFERRED_C_F + (100e-9,):
+        v = base * decade
+        if v >= c * (1 - 1e-9):
+            return v
+    return c
+
+
+def smallest_correction(circuit: Circuit, simulator=None) -> dict | None:
+    """The smallest correction capacitance (log bisection) with which no check fails;
+    None if the circuit already passes or none in range helps."""
+    def ok(c):
+        cc = dataclasses.replace(circuit, correction=correction_device(circuit, c), ranges=())
+        return not _failing(cc, set(LOW_SIDE) | set(HIGH_SIDE) | {"edge-match", "dc-offset", "turn-off-surge"},
+                            simulator)
+
+    lo, hi = CORRECTION_C_RANGE_F
+    if not ok(hi):
+        return None
+    while hi / lo > 1 + CORRECTION_REL_TOL:
+        mid = math.sqrt(lo * hi)
+        if ok(mid):
+            hi = mid
+        else:
+            lo = mid
+    c = _round_up_preferred(hi)
+    dev = correction_device(circuit, c)
+    fixed = dataclasses.replace(circuit, correction=dev, ranges=())
+    from loads.simulation import simulate
+    sim = simulator.simulate if simulator is not None else simulate
+    res = sim(fixed, setting=1.0, cycles=4, start="steady", samples_per_cycle=400)
+    i = res.group_a[-1][-400 * 2:]
+    loss = float(np.mean(i ** 2) * dev.resistance_ohm)
+    return {"capacitance_f": c, "resistance_ohm": dev.resistance_ohm, "loss_w": loss,
+            "rms_current_a": float(np.sqrt(np.mean(i ** 2))), "device": dev}
+
+
+def size(circuit: Circuit, progress=None, simulator=None) -> dict:
+    """All remedies for ``circuit`` (see module docstring).  Keys: verdict, counts,
+    correction, edge, rating_needed_w, breaker_curve, breaker_counts, surge_peak_a."""
+    base = dataclasses.replace(circuit, ranges=())
+    report = evaluate(base, simulator=simulator)
+    failing = [c.id for c in report.checks if c.status is Status.FAIL]
+    steps = [0]
+    total = 5
+
+    def step():
+        steps[0] += 1
+        if progress:
+            progress(steps[0], total)
+
+    counts = count_limits(base, simulator)
+    step()
+    correction = None
+    if report.verdict is Verdict.UNSUITABLE:
+        correction = smallest_correction(base, simulator)
+        if correction is not None:
+            check = evaluate(dataclasses.replace(base, correction=correction["device"]), simulator=simulator)
+            correction["verdict"] = str(check.verdict)
+            correction["failing"] = [c.id for c in check.checks if c.status is Status.FAIL]
+    step()
+    other = Edge.TRAILING if base.dimmer.edge is Edge.LEADING else Edge.LEADING
+    dim2 = dataclasses.replace(base.dimmer, edge=other,
+                               control=Control.PHASE if other is Edge.TRAILING else base.dimmer.control)
+    alt = evaluate(dataclasses.replace(base, dimmer=dim2), simulator=simulator)
+    edge = {"edge": str(other), "verdict": str(alt.verdict),
+            "failing": [c.id for c in alt.checks if c.status is Status.FAIL]}
+    step()
+    use = derating.rating_use(base.dimmer, base.loads)
+    need = base.dimmer.rated_load_w * use.utilisation
+    step()
+    peak = switch_on_peak_a(base, simulator)
+    curve = None
+    bcounts = {}
+    if base.breaker is not None:
+        c = breaker_band.holding_curve(peak, base.breaker.rated_current_a)
+        curve = str(c) if c is not None else None
+        bcounts = breaker_max_counts(base, simulator)
+    step()
+    return {"circuit": base.name, "verdict": str(report.verdict), "failing": failing, "counts": counts,
+            "correction": correction, "edge": edge, "rating_needed_w": need, "derating_factor": use.factor,
+            "breaker_curve": curve, "breaker_counts": bcounts, "surge_peak_a": peak}

@@ -1,0 +1,232 @@
+"""The checks' judgement on hand-built records whose answer is known by construction."""
+import math
+
+import numpy as np
+import pytest
+
+from compat import checks as ck
+from compat.harmonics import chopped_sine_harmonic_rms, class_a_limit_a
+from compat.report import Status
+from loads.breaker import Breaker
+from loads.circuit import Circuit
+from loads.dimmer import Dimmer
+from loads.driver import ElectronicDriver
+from loads.filament import Filament
+from loads.linear import Linear
+from loads.transformer import MagneticTransformer
+from tests.compat.records import F, SPC, half_cycles, run, sim_result
+
+W = np.ones(1)
+FIL = Circuit(loads=(Filament(name="lamp", count=2, rated_power_w=60.0),))
+LED = Circuit(loads=(ElectronicDriver(name="led", count=4, rated_power_w=6.0),))
+TRAIL = Dimmer(edge="trailing", control="phase", rc_diac=None)
+TR = MagneticTransformer(name="tr", count=1, rated_va=60.0, secondary_voltage_v=12.0, lamp_power_w=50.0)
+
+
+@pytest.mark.analytic
+def test_rating_and_minimum_load_from_nameplates():
+    r = ck.check_rating(FIL)
+    assert r.status is Status.PASS and r.value == pytest.approx(30.0) and r.margin == pytest.approx(0.7)
+    big = Circuit(loads=(Filament(name="lamp", count=8, rated_power_w=60.0),))
+    r = ck.check_rating(big)
+    assert r.status is Status.FAIL and r.safety and r.remedy
+    m = ck.check_minimum_load(LED)
+    assert m.status is Status.FAIL and m.value == pytest.approx(24.0) and m.limit == 40.0
+    assert m.margin == pytest.approx(-0.4)
+    # a correction device counts at its apparent power: 1 µF at 230 V 50 Hz ≈ 16.6 VA (2πfCV²)
+    dev = Linear(name="rc", resistance_ohm=330.0, series_capacitance_f=1e-6)
+    total, _ = ck.counted_load_w(Circuit(loads=LED.loads, correction=dev))
+    z = abs(complex(330.0, -1 / (2 * math.pi * 50 * 1e-6)))
+    assert total == pytest.approx(24.0 + 230.0 ** 2 / z, rel=1e-9)
+
+
+@pytest.mark.analytic
+def test_edge_match():
+    assert ck.check_edge_match(FIL).status is Status.PASS
+    assert ck.check_edge_match(LED).status is Status.CAUTION
+    r = ck.check_edge_match(Circuit(dimmer=TRAIL, loads=(TR,)))
+    assert r.status is Status.FAIL and r.safety
+    assert ck.check_edge_match(Circuit(dimmer=TRAIL, loads=LED.loads)).status is Status.PASS
+
+
+@pytest.mark.analytic
+def test_latching_fail_caution_pass():
+    ok = [run(s, peak=0.2) for s in (1.0, 0.5)]
+    r = ck.check_latching(FIL, ok, W)
+    assert r.status is Status.PASS and r.value == pytest.approx(0.2) and r.margin == pytest.approx(3.0)
+    # a failed latch at a lit setting: misfiring light
+    bad = ok + [run(0.3, hc=half_cycles(6, failed=[0, 1, 0, 0, 1, 0], firing=[90, math.nan, 90, 90, math.nan, 90], peak=0.04))]
+    r = ck.check_latching(FIL, bad, W)
+    assert r.status is Status.FAIL and r.margin < 0 and "0.30" in r.message
+    # failures only at the dark bottom of the knob: dead travel, a caution
+    bottom = ok + [run(0.0, light_fraction=0.0, hc=half_cycles(6, failed=1, firing=math.nan, peak=0.03, light=0.0))]
+    assert ck.check_latching(FIL, bottom, W).status is Status.CAUTION
+    assert ck.check_latching(Circuit(dimmer=TRAIL, loads=FIL.loads), ok, W).status is Status.NOT_APPLICABLE
+
+
+@pytest.mark.analytic
+def test_holding_judges_the_earliest_extinction():
+    ok = [run(1.0, extinction=179.0), run(0.5, extinction=176.0)]
+    r = ck.check_holding(FIL, ok, W)
+    assert r.status is Status.PASS and r.value == pytest.approx(176.0) and r.limit == pytest.approx(170.0)
+    bad = ok + [run(0.4, extinction=110.0, drop=1, firings=2, stable=False)]
+    r = ck.check_holding(FIL, bad, W)
+    assert r.status is Status.FAIL and r.value == pytest.approx(110.0) and "re-firing" in r.message
+    # the same drop-outs with the light judged steady: the switch chatters, a caution
+    chatter = ok + [run(0.4, extinction=110.0, drop=1, firings=2, stable=True)]
+    assert ck.check_holding(FIL, chatter, W).status is Status.CAUTION
+
+
+@pytest.mark.analytic
+def test_repetitive_peak_and_crest_factor():
+    t = np.arange(3 * SPC) / (SPC * F)
+    i = 30.0 * np.sin(2 * math.pi * F * t)
+    r = ck.check_repetitive_peak(FIL, [run(1.0, peak=30.0, dimmer_a=i)])
+    assert r.status is Status.FAIL and r.value == 30.0 and r.limit == 20.0
+    assert r.details["crest_factor"] == pytest.approx(math.sqrt(2), rel=1e-6)   # a sine's crest factor
+
+
+@pytest.mark.analytic
+def test_inrush_peak_and_i2t():
+    runs = [(0.0, sim_result(2, hc=half_cycles(4, peak=[10, 5, 4, 4]))),
+            (90.0, sim_result(2, hc=half_cycles(4, peak=[90, 5, 4, 4], i2t=[1.0, 0.1, 0.1, 0.1])))]
+    r = ck.check_inrush(FIL, runs)
+    assert r.status is Status.FAIL and r.value == 90 and r.details["switch_on_deg"] == 90.0
+    assert r.margin == pytest.approx((80 - 90) / 80)
+    runs2 = [(0.0, sim_result(2, hc=half_cycles(4, peak=10, i2t=40.0)))]
+    assert ck.check_inrush(FIL, runs2).status is Status.FAIL              # I²t over 30 A²s
+
+
+@pytest.mark.published
+def test_breaker_band_judgement():
+    # IEC 60898-1, B10: no trip below 30 A rms (42.4 A peak), must trip at 50 A (70.7 A peak).
+    c = Circuit(breaker=Breaker(curve="B", rated_current_a=10.0), loads=FIL.loads)
+    runs = lambda p: [(0.0, sim_result(2, hc=half_cycles(4, peak=1.0, peak_line=p)))]
+    assert ck.check_breaker(c, runs(40.0)).status is Status.PASS
+    r = ck.check_breaker(c, runs(60.0))
+    assert r.status is Status.FAIL and "may trip" in r.message and "type C" in r.remedy
+    assert ck.check_breaker(c, runs(80.0)).status is Status.FAIL
+    assert ck.check_breaker(FIL, runs(80.0)).status is Status.NOT_APPLICABLE
+
+
+@pytest.mark.analytic
+def test_off_state_glow_and_flash():
+    cyc = 50
+    n = cyc * SPC
+    t = np.arange(n) / (SPC * F)
+    dark = sim_result(cyc, light=np.zeros((1, n)), load_a=0.002 * np.sin(2 * math.pi * F * t))
+    r = ck.check_off_state(LED, dark, 40)
+    assert r.status is Status.PASS and r.details["leakage_rms_a"] == pytest.approx(0.002 / math.sqrt(2), rel=1e-3)
+    glow = sim_result(cyc, light=np.full((1, n), 0.01))
+    assert ck.check_off_state(LED, glow, 40).status is Status.CAUTION
+    flashes = ((t % 0.25) < 0.01).astype(float)[None, :] * 0.3        # a 10 ms flash every 0.25 s
+    r = ck.check_off_state(LED, sim_result(cyc, light=flashes), 40)
+    assert r.status is Status.FAIL and r.details["flash_period_s"] == pytest.approx(0.25, abs=1 / (SPC * F))
+
+
+@pytest.mark.analytic
+def test_capacitive_leakage():
+    # A capacitor passes I = 2πfCV: 100 nF at 230 V 50 Hz ≈ 7.2 mA (common practice, no source).
+    assert ck.capacitive_current_a(100e-9, 230.0, 50.0) == pytest.approx(7.2e-3, abs=0.05e-3)
+
+
+@pytest.mark.analytic
+def test_transformer_dc_figures():
+    # 60 VA, 230 V, 6 % copper: referred R = 0.06·230²/60 = 52.9 Ω, primary half 26.45 Ω;
+    # magnetising 8 % of 0.261 A rms → 29.5 mA peak, knee at 1.25× → headroom 7.38 mA [derived].
+    assert ck.transformer_primary_resistance_ohm(TR) == pytest.approx(26.45, rel=1e-3)
+    assert ck.transformer_dc_headroom_a(TR) == pytest.approx(0.25 * math.sqrt(2) * 0.08 * 60 / 230, rel=1e-9)
+
+
+@pytest.mark.analytic
+def test_dc_offset_from_dc_voltage_and_peaks():
+    c = Circuit(loads=(TR,))
+    n = 3 * SPC
+    t = (np.arange(n) + 0.5) / (SPC * F)
+    sine = 325 * np.sin(2 * math.pi * F * t)
+    sym = [run(0.5, hc=half_cycles(6, peak_line=1.0), load_v=sine)]
+    r = ck.check_dc_offset(c, sym)
+    assert r.status is Status.PASS and r.value == pytest.approx(0.0, abs=1e-9)
+    # 1 V DC: settles to 1/26.45 = 37.8 mA, five times the 7.4 mA headroom → saturation
+    off = [run(0.5, hc=half_cycles(6, peak_line=1.0), load_v=sine + 1.0)]
+    r = ck.check_dc_offset(c, off)
+    assert r.status is Status.FAIL and r.safety
+    assert r.value == pytest.approx(1.0 / 26.45, rel=1e-3) and r.details["dc_voltage_v"] == pytest.approx(1.0)
+    # saturation peaks already visible: peaks 3:1 between polarities
+    peaks = [run(0.5, hc=half_cycles(6, peak_line=[3.0, 1.0] * 3), load_v=sine)]
+    assert ck.check_dc_offset(c, peaks).status is Status.FAIL
+    assert ck.check_dc_offset(FIL, off).status is Status.NOT_APPLICABLE
+
+
+@pytest.mark.analytic
+def test_turn_off_surge_against_clamp():
+    c = Circuit(dimmer=TRAIL, loads=(TR,))
+    v = np.zeros(3 * SPC)
+    v[100] = 400.0
+    r = ck.check_turn_off_surge(c, [run(0.5, dimmer_v=v)])
+    assert r.status is Status.FAIL and r.value == 400.0
+    v[100] = 330.0
+    assert ck.check_turn_off_surge(c, [run(0.5, dimmer_v=v)]).status is Status.PASS
+    assert ck.check_turn_off_surge(FIL, [run(0.5, dimmer_v=v)]).status is Status.NOT_APPLICABLE
+
+
+@pytest.mark.analytic
+def test_dissipation_of_a_sine_current():
+    # P = V_T·mean|i| + r_T·mean(i²) = V_T·2I/π + r_T·I²/2 for a sine of peak I [derived].
+    t = (np.arange(3 * SPC) + 0.5) / (SPC * F)
+    i = 2.0 * np.sin(2 * math.pi * F * t)
+    d = FIL.dimmer
+    expect = d.on_state_voltage_v * 2 * 2.0 / math.pi + d.on_state_resistance_ohm * 2.0 ** 2 / 2
+    assert ck.switch_dissipation_w(FIL, i) == pytest.approx(expect, rel=1e-4)
+    r = ck.check_dissipation(FIL, [run(1.0, dimmer_a=i)])
+    assert r.status is Status.PASS and r.limit == pytest.approx(0.02 * 400.0)
+    r = ck.check_dissipation(FIL, [run(1.0, dimmer_a=6 * i)])
+    assert r.status is Status.FAIL
+
+
+@pytest.mark.analytic
+def test_harmonics_class_a_and_not_applicable():
+    # A ~3.6 kW filament-like load (25 A peak) fired at 90°, sampled finely (4000/cycle)
+    # so that aliasing does not disturb the high orders.  The worst order against the
+    # class A table is found from the closed form [derived] and the published limits.
+    spc = 4000
+    t = (np.arange(3 * spc) + 0.5) / (spc * F)
+    th = np.mod(2 * math.pi * F * t, math.pi)
+    i = np.where(th > math.pi / 2, 25.0 * np.sin(2 * math.pi * F * t), 0.0)
+    r = ck.check_harmonics(FIL, [run(0.5, load_a=i, spc=spc)])
+    closed = {n: chopped_sine_harmonic_rms(n, 90.0, 25.0) / class_a_limit_a(n) for n in range(2, 41)}
+    worst = max(closed, key=closed.get)
+    assert r.status is Status.FAIL and r.details["order"] == worst
+    # atol/rtol: the FFT of the sampled jump agrees with the series to ~1e-3 A
+    assert r.value == pytest.approx(chopped_sine_harmonic_rms(worst, 90.0, 25.0), abs=5e-3)
+    assert r.margin == pytest.approx(1 - closed[worst], abs=0.05)
+    us = Circuit(supply=FIL.supply.__class__(voltage_v=120.0, frequency_hz=60.0), loads=FIL.loads)
+    assert ck.check_harmonics(us, [run(0.5, load_a=i, spc=spc)]).status is Status.NOT_APPLICABLE
+
+
+@pytest.mark.analytic
+def test_flicker_misfire_fails_ripple_cautions():
+    n = 3 * SPC
+    t = (np.arange(n) + 0.5) / (SPC * F)
+    steady = (1.0 + 0.02 * np.sin(2 * math.pi * 100 * t))[None, :] * 0.5
+    assert ck.check_flicker(FIL, [run(0.5, light=steady)], W).status is Status.PASS
+    ripple = (1.0 + 0.3 * np.sin(2 * math.pi * 100 * t))[None, :] * 0.5
+    assert ck.check_flicker(FIL, [run(0.5, light=ripple)], W).status is Status.CAUTION
+    misfire = steady.copy()
+    misfire[0, (np.floor(t * 100).astype(int) % 3) == 2] = 0.0      # every third half-cycle dark
+    r = ck.check_flicker(FIL, [run(0.5, light=misfire)], W)
+    assert r.status is Status.FAIL and r.details["deciding_hz"] < 90
+
+
+@pytest.mark.analytic
+def test_dimming_range_dropout_and_pop_on():
+    down = [run(s, light_fraction=lf) for s, lf in [(1.0, 0.95), (0.75, 0.5), (0.5, 0.2), (0.25, 0.03), (0.0, 0.0)]]
+    up = [run(s, direction="up", light_fraction=lf) for s, lf in [(0.0, 0.0), (0.25, 0.0), (0.5, 0.25), (0.75, 0.5), (1.0, 0.95)]]
+    r = ck.check_dimming_range(FIL, down, up, W)
+    assert r.status is Status.PASS and r.value == pytest.approx(3.0)
+    d = r.details
+    assert d["drop_out_setting"] == 0.0 and d["pop_on_setting"] == 0.5 and d["hysteresis"] == 0.5
+    assert d["pop_on_light"] == 0.25
+    assert d["dead_travel"] == pytest.approx(0.125)
+    shallow = [run(s, light_fraction=lf) for s, lf in [(1.0, 0.95), (0.5, 0.3), (0.0, 0.2)]]
+    assert ck.check_dimming_range(FIL, shallow, [], W).status is Status.CAUTION
