@@ -88,6 +88,7 @@ def main(argv: list[str] | None = None) -> int:
     n, cyc = args.repeats, args.cycles
     print(f"ours: simulate() solve time, median of {n} after a warm-up call (numba compile excluded)")
     print(f"ngspice: 'Total analysis time' from rusage, median of {n} runs, at the converged step")
+    print("ratio: ngspice analysis time / ours (above 1: ours is faster); same circuit and span")
     print()
     print(f"{'circuit':<52} {'span':>12} {'ours s':>10} {'ngspice s':>10} {'ng wall s':>10} {'ratio':>8}")
     print("-" * 110)
