@@ -112,7 +112,7 @@ def pack(d: "ElectronicDriver") -> np.ndarray:
                      d.min_light_fraction, 1.0 if d.dimmable else 0.0])
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def _bridge(v, vbus, p):
     x = abs(v) - p[_VDD] - vbus
     if x <= 0.0:
@@ -120,7 +120,7 @@ def _bridge(v, vbus, p):
     return math.copysign(x / p[_RS], v)
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def unit_current(v, y, xo, p, mode):
     i = _bridge(v, y[xo], p)
     k = p[_BLKIND]
@@ -131,7 +131,7 @@ def unit_current(v, y, xo, p, mode):
     return i
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def unit_rhs(v, y, xo, p, mode, level, F):
     vbus = y[xo]
     i_conv = 0.0
@@ -140,12 +140,12 @@ def unit_rhs(v, y, xo, p, mode, level, F):
     F[xo] = abs(_bridge(v, vbus, p)) - i_conv
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def unit_mass(p, M, xo):
     M[xo] = p[_CB]
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def unit_guards(v, y, xo, p, mode, g, k):
     g[k] = abs(v) - p[_VDD] - y[xo]
     if mode & RUNNING:
@@ -155,7 +155,7 @@ def unit_guards(v, y, xo, p, mode, g, k):
     return k + 2
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def unit_mode(v, y, xo, p, mode):
     vbus = y[xo]
     if mode & RUNNING:
@@ -163,13 +163,13 @@ def unit_mode(v, y, xo, p, mode):
     return RUNNING if vbus >= p[_VSTART] else 0
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def sense(v, p):
     """1 while the phase detector sees voltage, else 0."""
     return 1.0 if abs(v) > p[_VSENSE] else 0.0
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def decoded_level(conduction_share, level, p):
     """New level after one half-cycle in which the detector saw ``conduction_share``."""
     if p[_DIMM] == 0.0:
@@ -179,6 +179,6 @@ def decoded_level(conduction_share, level, p):
     return level + FILTER_GAIN * (target - level)
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def unit_light_state(v, y, xo, p, mode, level):
     return level if (mode & RUNNING) else 0.0

@@ -57,37 +57,37 @@ def pack(d: ElectronicTransformer) -> np.ndarray:
     return np.array([d.start_voltage_v, r_eq, active, d.rated_voltage_v])
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def unit_current(v, y, xo, p, mode):
     if mode & RUNNING:
         return v / p[_REQ]
     return 0.0
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def unit_rhs(v, y, xo, p, mode, level, F):
     pass
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def unit_mass(p, M, xo):
     pass
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def unit_guards(v, y, xo, p, mode, g, k):
     g[k] = abs(v) - p[_VSTART]
     return k + 1
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def unit_mode(v, y, xo, p, mode):
     if p[_ACTIVE] > 0.0 and abs(v) > p[_VSTART]:
         return RUNNING
     return 0
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def unit_light_state(v, y, xo, p, mode, level):
     if mode & RUNNING:
         return v * v / (p[_VR] * p[_VR])

@@ -98,7 +98,7 @@ JAC_AGE = 8            # engineering choice: steps between Jacobian refreshes
 
 
 # --------------------------------------------------------------------------- loads
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def _unit_current(kind, v, y, xo, p, mode):
     if kind == K_FILAMENT:
         return v / _fil.resistance_ohm(y[xo], p)
@@ -111,7 +111,7 @@ def _unit_current(kind, v, y, xo, p, mode):
     return _lin.unit_current(v, y, xo, p, mode)
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def _unit_rhs(kind, v, y, xo, p, mode, level, F):
     if kind == K_FILAMENT:
         t = y[xo]
@@ -127,7 +127,7 @@ def _unit_rhs(kind, v, y, xo, p, mode, level, F):
         _lin.unit_rhs(v, y, xo, p, mode, level, F)
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def _unit_mass(kind, p, M, xo):
     if kind == K_FILAMENT:
         M[xo] = 1.0
@@ -141,7 +141,7 @@ def _unit_mass(kind, p, M, xo):
         _lin.unit_mass(p, M, xo)
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def _unit_guards(kind, v, y, xo, p, mode, g, k):
     if kind == K_MAGNETIC:
         return _tr.unit_guards(v, y, xo, p, mode, g, k)
@@ -152,7 +152,7 @@ def _unit_guards(kind, v, y, xo, p, mode, g, k):
     return k
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def _unit_mode(kind, v, y, xo, p, mode):
     if kind == K_MAGNETIC:
         return _tr.unit_mode(v, y, xo, p, mode)
@@ -163,7 +163,7 @@ def _unit_mode(kind, v, y, xo, p, mode):
     return 0
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def _unit_light_state(kind, v, y, xo, p, mode, level):
     if kind == K_FILAMENT:
         return y[xo]
@@ -177,7 +177,7 @@ def _unit_light_state(kind, v, y, xo, p, mode, level):
 
 
 # --------------------------------------------------------------------------- dimmer
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def _diac_current(y, P, S):
     if S[DIAC_ON] == 0:
         return 0.0
@@ -186,7 +186,7 @@ def _diac_current(y, P, S):
     return (y[VT] + P[VONN]) / P[RG]
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def _clamp_current(vd, P, S):
     c = S[CLAMP]
     if c == 0:
@@ -195,7 +195,7 @@ def _clamp_current(vd, P, S):
 
 
 # --------------------------------------------------------------------------- system
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def residual(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F):
     """F(t, y) for the current modes (see module docstring)."""
     e = P[VPK] * math.sin(P[OMEGA] * t)
@@ -234,7 +234,7 @@ def residual(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F):
     F[VB] = il - itot
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def mass(P, IP, S, gk, gxo, gpo, gnp, GP, M):
     M[IL] = P[LS]
     M[ISW] = P[LC] if (S[SW_ON] != 0 and P[LC] > 0.0) else 0.0
@@ -246,7 +246,7 @@ def mass(P, IP, S, gk, gxo, gpo, gnp, GP, M):
         _unit_mass(gk[g], GP[gpo[g]:gpo[g] + gnp[g]], M, gxo[g])
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def guards(y, P, IP, S, gk, gxo, gpo, gnp, GP, g):
     """Functions whose sign change is a mode change; returns how many were written."""
     k = 0
@@ -284,7 +284,7 @@ def guards(y, P, IP, S, gk, gxo, gpo, gnp, GP, g):
     return k
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def outputs(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o):
     o[O_E] = P[VPK] * math.sin(P[OMEGA] * t)
     o[O_VB] = y[VB]
@@ -302,7 +302,7 @@ def outputs(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o):
 
 
 # --------------------------------------------------------------------------- linear algebra
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def lu_factor(A, piv):
     n = A.shape[0]
     for k in range(n):
@@ -330,7 +330,7 @@ def lu_factor(A, piv):
     return True
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def lu_solve(A, piv, b):
     n = A.shape[0]
     for k in range(n):
@@ -352,11 +352,12 @@ def lu_solve(A, piv, b):
 
 
 # --------------------------------------------------------------------------- integrator
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def jacobian(t, y, F0, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F1):
     n = y.shape[0]
     for j in range(n):
-        work[:] = y
+        for i in range(n):
+            work[i] = y[i]
         dy = 1e-7 * max(abs(y[j]), scale[j])
         work[j] += dy
         residual(t, work, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F1)
@@ -364,7 +365,7 @@ def jacobian(t, y, F0, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F
             J[i, j] = (F1[i] - F0[i]) / dy
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def newton(t, z, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G):
     """Solve M·z − c·F(t, z) = rhs with the factored iteration matrix A = M − c·J.
 
@@ -402,7 +403,7 @@ def newton(t, z, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, 
     return False
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F, G, work, F1, rhs):
     """Satisfy the algebraic rows after a mode change (backward-Euler steps of 1 ns)."""
     n = y.shape[0]
@@ -423,7 +424,7 @@ def make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, 
     return False
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def trbdf2_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
                 yg, y1, Fg, F1, A, piv, G, rhs, est):
     """One TR-BDF2 step from (t, y); returns the weighted error norm (inf: failed)."""
@@ -479,12 +480,12 @@ def trbdf2_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
 
 
 # --------------------------------------------------------------------------- events
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def _angle_deg(t, t0, P):
     return (t - t0) * P[OMEGA] * 180.0 / math.pi
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def _record_firing(t, S, Q, HC, P):
     h = S[HCIDX]
     if h < HC.shape[0]:
@@ -494,7 +495,7 @@ def _record_firing(t, S, Q, HC, P):
     S[FIRE_HC] = h
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def _record_off(t, S, Q, HC, P, chop, y):
     """The switch stops conducting at t; chop cuts the choke's and line's switch current."""
     f = S[FIRE_HC]
@@ -511,7 +512,7 @@ def _record_off(t, S, Q, HC, P, chop, y):
     S[LATCHED] = 0
 
 
-@numba.njit(cache=True, inline='always')
+@numba.njit(cache=True, _nrt=False)
 def _series_current_index(kind, p, xo):
     """Index of a unit's inductive terminal-current state, or −1."""
     if kind == K_MAGNETIC:
@@ -521,7 +522,7 @@ def _series_current_index(kind, p, xo):
     return -1
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def _chop_loads(y, cut, IP, gk, gxo, gpo, gnp, gn, GP):
     """A leading-edge switch opening at I_H also cuts the (≤ I_H) current of inductive
     loads in series with it; their energy ½·L·I_H² is dropped, as the choke's is."""
@@ -539,7 +540,7 @@ def _chop_loads(y, cut, IP, gk, gxo, gpo, gnp, gn, GP):
             y[idx] *= f
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
     """Bring the discrete state in line with y at t; returns True if anything changed."""
     any_change = False
@@ -611,7 +612,7 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
     return any_change
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def _fire_phase(t, y, P, S, Q, HC):
     """Phase control: the gate pulse starts at t."""
     Q[T_FIRE] = np.inf
@@ -623,7 +624,7 @@ def _fire_phase(t, y, P, S, Q, HC):
     _record_firing(t, S, Q, HC, P)
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def _start_half_cycle(t, P, IP, S, Q, HC):
     h = S[HCIDX]
     if h < HC.shape[0]:
@@ -642,7 +643,7 @@ def _start_half_cycle(t, P, IP, S, Q, HC):
         Q[T_OFF] = np.inf
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def _end_half_cycle(P, IP, S, Q, gk, gpo, gnp, GP):
     """Driver phase decoders update once per half-cycle."""
     half = math.pi / P[OMEGA]
@@ -653,7 +654,7 @@ def _end_half_cycle(P, IP, S, Q, gk, gpo, gnp, GP):
             Q[N_Q + 2 * g + 1] = 0.0
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def _accumulate(h, o0, og, o1, P, IP, S, Q, HC, gk, gpo, gnp, GP):
     k = S[HCIDX]
     if k >= HC.shape[0]:
@@ -676,13 +677,13 @@ def _accumulate(h, o0, og, o1, P, IP, S, Q, HC, gk, gpo, gnp, GP):
             Q[N_Q + 2 * g + 1] += h * _share_above(abs(o0[O_VB]), abs(og[O_VB]), abs(o1[O_VB]), thr)
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def _share_above(a0, ag, a1, level):
     """Share of a step during which a piecewise-linear a(t) through 0, γ, 1 is ≥ level."""
     return GAMMA * _seg_above(a0, ag, level) + (1.0 - GAMMA) * _seg_above(ag, a1, level)
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def _seg_above(a, b, level):
     if a >= level and b >= level:
         return 1.0

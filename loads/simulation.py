@@ -286,8 +286,8 @@ def pack(circuit: Circuit, *, setting: float | None, firing_angle_deg: float | N
     P[K.GLEAK] = OFF_STATE_CONDUCTANCE_S
     # the largest step follows the tolerance (∝ tol^(1/3), the method's local order), so the
     # tolerance governs accuracy even where no transient limits the step (engineering choice;
-    # the default gives T/200)
-    P[K.HMAX] = sup.period_s * min(max(0.05 * tolerance ** (1.0 / 3.0), 1.0 / 4000.0), 1.0 / 50.0)
+    # the default gives T/50)
+    P[K.HMAX] = sup.period_s * min(max(0.2 * tolerance ** (1.0 / 3.0), 1.0 / 4000.0), 1.0 / 50.0)
     P[K.RTOL] = tolerance
     P[K.EVTOL] = EVENT_TOL_S
     P[K.EARLY] = EARLY_DROPOUT_DEG

@@ -230,25 +230,33 @@ def test_case_b_deck_reproduces_rashid_example_11_2(case_b):
 # with the 6.5 mH load at 197 kHz, Q ~ 3200.  gear at 500 steps/cycle damps the ring away;
 # the trapezoidal rule at 100000 steps/cycle (0.17 µs, 30 points per ring period) keeps it.
 B_RING_STEPS_PER_CYCLE = 100_000
+RING_CW_F = 100e-12
 
 
 @pytest.fixture(scope="module")
 def case_b_ring(ngspice_exe):
     c = ng.CASE_B
     text = (ng.SPICE_DIR / c.deck).read_text().replace("method=gear", "method=trap")
-    run = ng.run_deck(text, params=dict(c.params), tmax_s=c.period_s / B_RING_STEPS_PER_CYCLE,
+    run = ng.run_deck(text, params=dict(c.params) | {"cw": RING_CW_F}, tmax_s=c.period_s / B_RING_STEPS_PER_CYCLE,
                       tstop_s=c.cycles * c.period_s, exe=ngspice_exe)
     return _spice_half_cycles(c, run, "i(vtri)", "i(vsl)", "v(load)", holding_a=1e-3, gate_s=20e-6)
 
 
-def test_case_b_ring_reference_matches_scipy(case_b, case_b_ring):
+@pytest.fixture(scope="module")
+def case_b_100pf(ngspice_exe):
+    c = ng.CASE_B
+    run = c.run(exe=ngspice_exe, cw=RING_CW_F)
+    return c, run, _spice_half_cycles(c, run, "i(vtri)", "i(vsl)", "v(load)", holding_a=1e-3, gate_s=20e-6)
+
+
+def test_case_b_ring_reference_matches_scipy(case_b_100pf, case_b_ring):
     # Guard on the reference: the half-cycle load rms with the off-state ring computed as
     # ngspice's conduction part (gear run) + the ring integrated by scipy (DOP853, rtol 1e-10)
     # from the capacitor voltage at extinction, inductor current 0.  rtol 1e-3: the trap
     # run still moves by 3e-3 between 20000 and 100000 steps/cycle.
     from scipy.integrate import solve_ivp
 
-    c, run, hc = case_b
+    c, run, hc = case_b_100pf
     t, v = run.t, run.data["v(load)"]
     i_sw = np.abs(run.data["i(vtri)"])
     t0, t1 = 0.5 * c.period_s, c.period_s                       # half-cycle 1
@@ -275,6 +283,7 @@ def test_case_b_ours_matches_ngspice(case_b, ours_b):
     ours = res.half_cycles
     assert len(ours) == 2 * c.cycles
     _assert_close("load rms A", ours.load_rms_a, hc["rms_a"], rtol=RMS_RTOL)
+    _assert_close("load rms V", ours.load_rms_v, hc["rms_v"], rtol=RMS_RTOL)
     _assert_close("peak load A", _our_peak_per_half_cycle(res, res.group_a[0]), hc["peak_load_a"],
                   rtol=PEAK_RTOL)
     _assert_close("peak switch A", ours.peak_current_a, hc["peak_sw_a"], rtol=PEAK_RTOL)
@@ -289,8 +298,9 @@ def test_case_b_ours_matches_ngspice(case_b, ours_b):
     "ring (100 pF with 6.5 mH, 197 kHz, Q ≈ 3200) its numerical damping removes most of it; "
     "measured: ours 94.45 V against 96.30 V.  The conduction itself (current, peaks, extinction) "
     "agrees above; the ring carries 0.6 µJ and matters to no check."))
-def test_case_b_load_voltage_with_off_state_ring(case_b_ring, ours_b):
-    _assert_close("load rms V (ring resolved)", ours_b.half_cycles.load_rms_v, case_b_ring["rms_v"],
+def test_case_b_load_voltage_with_off_state_ring(case_b_ring):
+    ours = _ours(ng.CASE_B, cw=RING_CW_F)
+    _assert_close("load rms V (ring resolved)", ours.half_cycles.load_rms_v, case_b_ring["rms_v"],
                   rtol=RMS_RTOL)
 
 
