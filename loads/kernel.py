@@ -787,12 +787,14 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             outputs(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o0)
             fresh = False
         # attempt steps until one is accepted
+        rejected = False
         while True:
             err = trbdf2_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
                               yg, y1, Fg, F1, A, piv, G, rhs, est)
             if err <= 1.0:
                 break
             counters[1] += 1
+            rejected = True
             if np.isinf(err):
                 h *= 0.25
                 if jac_age > 1:
@@ -816,6 +818,8 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             h = 1e-8
             continue
         fac = 2.0 if err < 1e-6 else min(2.0, 0.9 * err ** (-1.0 / 3.0))
+        if rejected:
+            fac = min(fac, 1.0)   # no growth right after a rejection (fewer repeat rejections)
         h_before = h
         # located events: did any guard change sign?
         guards(y1, P, IP, S, gk, gxo, gpo, gnp, GP, g1)

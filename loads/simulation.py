@@ -160,7 +160,7 @@ MIN_NODE_CAPACITANCE_F = 100e-12
 # Engineering choice: triac blocking leakage (~1 µA at 100 V), keeps the dimmer voltage defined.
 OFF_STATE_CONDUCTANCE_S = 1e-8
 CLAMP_RESISTANCE_OHM = 1.0        # engineering choice: slope of the trailing-edge clamp
-EVENT_TOL_S = 2e-8                # engineering choice: events located to 20 ns (≈ 0.0004° at 50 Hz)
+EVENT_TOL_S = 1e-7                # engineering choice: events located to 0.1 µs (≈ 0.002° at 50 Hz)
 DEFAULT_TOLERANCE = 1e-3          # engineering choice: relative step tolerance (see convergence test)
 STEADY_MAX_CYCLES = 60            # engineering choice: give up looking for a periodic state after this
 
