@@ -67,6 +67,9 @@ def _finite(x):
 
 def _res(check_id: str, status: Status, value, limit, unit: str, margin, message: str, *, remedy=None,
          sources=(), safety=False, details=None) -> CheckResult:
+    for name, x in (("value", value), ("limit", limit), ("margin", margin)):
+        if x is not None and math.isnan(x):         # a NaN is a bug upstream: never report it as "no value"
+            raise ValueError(f"check {check_id}: {name} is NaN")
     return CheckResult(id=check_id, status=status, value=_finite(value), limit=_finite(limit), unit=unit,
                        margin=_finite(margin), message=message, remedy=remedy, sources=tuple(sources),
                        safety=safety, details=details or {})
@@ -443,7 +446,7 @@ def check_off_state(circuit: Circuit, off: SimResult | None, analysed_cycles: in
     gl = np.atleast_2d(off.group_light)[:, sl]
     t = off.t_s[sl]
     worst_g, worst_light = 0, -1.0
-    for k in range(gl.shape[0]):
+    for k in range(min(gl.shape[0], len(circuit.loads))):     # lamp groups only, not a correction device
         if float(np.max(gl[k])) > worst_light:
             worst_g, worst_light = k, float(np.max(gl[k]))
     groups = circuit.all_loads

@@ -107,9 +107,11 @@ def switch_on_peak_a(circuit: Circuit, sim=None) -> float:
 
 
 def gather(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress=None, cancel=None, simulator=None) -> Evidence:
-    """Every simulation the checks need, for one circuit (no ranges)."""
+    """Every simulation the checks need, for one circuit (no ranges), sweeping
+    ``settings`` points each way (``evaluate`` never asks for fewer than MIN_SETTINGS;
+    the sizing search may)."""
     sim = simulator or _default_simulator()
-    grid = settings_grid(max(settings, MIN_SETTINGS))
+    grid = settings_grid(settings)
     total = 2 * len(grid) + len(INRUSH_ANGLES_DEG) + 1
     done = [0]
 
@@ -261,13 +263,14 @@ def evaluate(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress: Callab
     sim = simulator or _default_simulator()
     base = dataclasses.replace(circuit, ranges=())
     n_cases = 1 + 2 * len(circuit.ranges)
-    per_case = 2 * max(settings, MIN_SETTINGS) + len(INRUSH_ANGLES_DEG) + 1
+    per_case = 2 * max(int(settings), MIN_SETTINGS) + len(INRUSH_ANGLES_DEG) + 1
     offset = [0]
 
     def prog(done, total):
         if progress is not None:
             progress(offset[0] + done, n_cases * per_case)
 
+    settings = max(int(settings), MIN_SETTINGS)
     ev = gather(base, settings=settings, progress=prog, cancel=cancel, simulator=sim)
     nominal = _judge_with_breaker(ev, sim)
     cases = []

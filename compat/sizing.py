@@ -25,7 +25,7 @@ from compat import breaker_band, derating
 from compat.evaluate import evaluate, gather, judge, switch_on_peak_a
 from compat.report import Status, Verdict
 from loads.circuit import Circuit
-from loads.dimmer import Control, Edge
+from loads.dimmer import Control, Dimmer, Edge
 from loads.linear import Linear
 
 # Engineering choice: 11 settings are enough to find where a count starts to fail; the
@@ -34,9 +34,9 @@ SEARCH_SETTINGS = 11
 LOW_SIDE = ("minimum-load", "latching", "holding", "off-state", "dimming-range", "flicker")
 HIGH_SIDE = ("rating", "repetitive-peak", "inrush", "breaker", "harmonics", "dissipation")
 MAX_COUNT = 500                           # loads.load: count is 1–500
-# Correction device (engineering choice): the resistor limits the spike each time the
-# switch fires into the capacitor to about 1 A at the mains peak, and the capacitance
-# is searched between 10 nF and 10 µF.
+# Correction device (engineering choice): the smallest resistor limits the spike each
+# time the switch fires into the capacitor to about 1 A at the mains peak; the
+# capacitance is searched between 10 nF and 10 µF.
 CORRECTION_SPIKE_A = 1.0
 CORRECTION_C_RANGE_F = (10e-9, 10e-6)
 CORRECTION_REL_TOL = 0.05                 # engineering choice: 5 % on the capacitance
@@ -126,15 +126,16 @@ def count_limits(circuit: Circuit, simulator=None, progress=None) -> dict[str, d
     return out
 
 
-def correction_device(circuit: Circuit, capacitance_f: float) -> Linear:
-    """A series R–C load-correction device of the given capacitance [F]."""
-    r = circuit.supply.peak_v / CORRECTION_SPIKE_A
+def correction_device(circuit: Circuit, capacitance_f: float, resistance_ohm: float | None = None) -> Linear:
+    """A series R–C load-correction device [F], [Ω] (default R: the spike limit)."""
+    r = resistance_ohm if resistance_ohm is not None else circuit.supply.peak_v / CORRECTION_SPIKE_A
     return Linear(name="load-correction device", count=1, rated_power_w=1.0,
                   rated_voltage_v=circuit.supply.voltage_v, resistance_ohm=r, series_capacitance_f=capacitance_f)
 
 
 def _round_up_preferred(c: float) -> float:
-    decade = 10 ** math.floor(math.log10(c / 10e-9)) if c > 0 else 1.0
+    """The next E6 value at or above c [F]."""
+    decade = 10.0 ** math.floor(math.log10(c / 10e-9)) if c > 0 else 1.0
     for base in PREFERRED_C_F + (100e-9,):
         v = base * decade
         if v >= c * (1 - 1e-9):
@@ -142,25 +143,46 @@ def _round_up_preferred(c: float) -> float:
     return c
 
 
-def smallest_correction(circuit: Circuit, simulator=None) -> dict | None:
-    """The smallest correction capacitance (log bisection) with which no check fails;
-    None if the circuit already passes or none in range helps."""
-    def ok(c):
-        cc = dataclasses.replace(circuit, correction=correction_device(circuit, c), ranges=())
-        return not _failing(cc, set(LOW_SIDE) | set(HIGH_SIDE) | {"edge-match", "dc-offset", "turn-off-surge"},
-                            simulator)
+def correction_resistances_ohm(circuit: Circuit) -> tuple[float, ...]:
+    """Series resistors tried: the spike limit, then more resistive devices (engineering
+    choice: a mostly resistive bypass keeps its current in phase with the voltage, so
+    the switch holds to the end of the half-cycle, at the price of more heat)."""
+    r0 = circuit.supply.peak_v / CORRECTION_SPIKE_A
+    return (r0, 3 * r0, 10 * r0)
 
-    lo, hi = CORRECTION_C_RANGE_F
-    if not ok(hi):
+
+_ALL = set(LOW_SIDE) | set(HIGH_SIDE) | {"edge-match", "dc-offset", "turn-off-surge"}
+
+
+def smallest_correction(circuit: Circuit, simulator=None) -> dict | None:
+    """The smallest correction capacitance (log bisection, for each series resistor of
+    ``correction_resistances_ohm``) with which no check fails, rounded up to E6; its
+    loss from a steady simulation at full.  None if no device in range passes."""
+    best = None
+    for r in correction_resistances_ohm(circuit):
+        def ok(c, r=r):
+            cc = dataclasses.replace(circuit, correction=correction_device(circuit, c, r), ranges=())
+            try:
+                return not _failing(cc, _ALL, simulator)
+            except RuntimeError:            # the simulator gave up on this circuit: not a pass
+                return False
+
+        lo, hi = CORRECTION_C_RANGE_F
+        if not ok(hi):
+            continue
+        while hi / lo > 1 + CORRECTION_REL_TOL:
+            mid = math.sqrt(lo * hi)
+            if ok(mid):
+                hi = mid
+            else:
+                lo = mid
+        c = _round_up_preferred(hi)
+        if best is None or c < best[0]:
+            best = (c, r)
+    if best is None:
         return None
-    while hi / lo > 1 + CORRECTION_REL_TOL:
-        mid = math.sqrt(lo * hi)
-        if ok(mid):
-            hi = mid
-        else:
-            lo = mid
-    c = _round_up_preferred(hi)
-    dev = correction_device(circuit, c)
+    c, r = best
+    dev = correction_device(circuit, c, r)
     fixed = dataclasses.replace(circuit, correction=dev, ranges=())
     from loads.simulation import simulate
     sim = simulator.simulate if simulator is not None else simulate
@@ -196,8 +218,12 @@ def size(circuit: Circuit, progress=None, simulator=None) -> dict:
             correction["failing"] = [c.id for c in check.checks if c.status is Status.FAIL]
     step()
     other = Edge.TRAILING if base.dimmer.edge is Edge.LEADING else Edge.LEADING
+    # Engineering choice: a trailing-edge dimmer switches softly and carries no RFI
+    # choke (its current would be cut at every turn-off); a leading-edge one gets the
+    # default choke back.
     dim2 = dataclasses.replace(base.dimmer, edge=other,
-                               control=Control.PHASE if other is Edge.TRAILING else base.dimmer.control)
+                               control=Control.PHASE if other is Edge.TRAILING else base.dimmer.control,
+                               choke_inductance_h=0.0 if other is Edge.TRAILING else Dimmer().choke_inductance_h)
     alt = evaluate(dataclasses.replace(base, dimmer=dim2), simulator=simulator)
     edge = {"edge": str(other), "verdict": str(alt.verdict),
             "failing": [c.id for c in alt.checks if c.status is Status.FAIL]}
