@@ -21,10 +21,7 @@ from textual.widgets import Footer, Header, Static
 from loads.errors import InputError
 from tui.units import format_number, format_quantity
 
-try:  # textual-plotext draws with the app's theme; plain plotext is the fallback
-    from textual_plotext import PlotextPlot
-except ImportError:  # pragma: no cover - depends on the environment
-    PlotextPlot = None
+from textual_plotext import PlotextPlot
 
 CYCLES_SHOWN = 3          # engineering choice: enough to see both polarities and repeatability
 STEP = 0.05               # engineering choice: 20 steps across the knob's travel
@@ -32,22 +29,9 @@ FINE_STEP = 0.01
 DEBOUNCE_S = 0.25         # engineering choice: holding [ or ] runs one simulation, not many
 
 
-class _Plot(Static):
-    """Fallback: plotext straight to text when textual-plotext is missing."""
-
-    def __init__(self, **kwargs) -> None:
-        super().__init__(**kwargs)
-        import plotext
-        self.plt = plotext
-
-    def render(self):
-        from rich.text import Text
-        self.plt.plotsize(max(self.size.width, 10), max(self.size.height, 5))
-        return Text.from_ansi(self.plt.build())
-
-
 def make_plot(**kwargs):
-    return PlotextPlot(**kwargs) if PlotextPlot is not None else _Plot(**kwargs)
+    """A plot widget drawn with the app's theme (textual-plotext)."""
+    return PlotextPlot(**kwargs)
 
 
 def waveform_figures(result) -> dict[str, float | None]:

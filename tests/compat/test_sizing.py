@@ -1,0 +1,72 @@
+"""Sizing searches: the bisection helpers, preferred values, and searches over the
+real simulator (common practice, no source, for the scenarios)."""
+import dataclasses
+
+import pytest
+
+from compat import breaker_band
+from compat.evaluate import evaluate, switch_on_peak_a
+from compat.report import Status, Verdict
+from compat.sizing import _max_passing, _min_passing, _round_up_preferred, breaker_max_counts, smallest_correction
+from loads.breaker import Breaker
+from loads.circuit import Circuit
+from loads.dimmer import Dimmer
+from loads.driver import ElectronicDriver
+
+
+@pytest.mark.analytic
+@pytest.mark.parametrize("threshold", [1, 2, 3, 7, 64, 65, 311, 500])
+def test_bisection_finds_the_boundary(threshold):
+    calls = []
+
+    def ok_up_to(n):
+        calls.append(n)
+        return n <= threshold
+
+    assert _max_passing(ok_up_to, 1, 500) == threshold
+    assert len(calls) <= 2 * 10 + 2                      # logarithmic, not a scan
+    assert _min_passing(lambda n: n >= threshold, 1, 500) == threshold
+    assert _min_passing(lambda n: False, 1, 500) is None
+    assert _max_passing(lambda n: False, 1, 500) == 0
+
+
+@pytest.mark.analytic
+def test_preferred_capacitors():
+    # E6 series 10, 15, 22, 33, 47, 68 (common practice, no source)
+    assert _round_up_preferred(0.3e-6) == pytest.approx(0.33e-6)
+    assert _round_up_preferred(12e-9) == pytest.approx(15e-9)
+    assert _round_up_preferred(47e-9) == pytest.approx(47e-9)
+    assert _round_up_preferred(70e-9) == pytest.approx(100e-9)
+    assert _round_up_preferred(2.1e-6) == pytest.approx(2.2e-6)
+
+
+@pytest.mark.slow
+def test_breaker_count_is_the_boundary_in_the_simulation():
+    # IEC 60898-1 band as peak; the count found holds and one more does not.
+    dim = Dimmer(control="phase", wiring="with-neutral", rc_diac=None, rated_load_w=1000.0, min_load_w=10.0,
+                 surge_peak_a=500.0, surge_i2t_a2s=500.0)
+    c = Circuit(dimmer=dim, breaker=Breaker(curve="B", rated_current_a=6.0),
+                loads=(ElectronicDriver(name="drv", count=10, rated_power_w=8.0),))
+    n = breaker_max_counts(c)["drv"]
+    lo, _ = breaker_band.band_peak_a(c.breaker)
+    at = dataclasses.replace(c, loads=(dataclasses.replace(c.loads[0], count=n),))
+    over = dataclasses.replace(c, loads=(dataclasses.replace(c.loads[0], count=n + 1),))
+    assert 1 <= n < 500
+    assert switch_on_peak_a(at) < lo <= switch_on_peak_a(over)
+
+
+@pytest.mark.slow
+@pytest.mark.xfail(strict=False, reason="no R–C device up to 10 µF passes: the simulated LED light jumps between "
+                                        "settings (e.g. 5 % → 53 % → 8 %), so holding/flicker fail at a few unsteady "
+                                        "settings; driver model reported to the lead, check not bent")
+def test_correction_device_sized_by_search_makes_failing_led_circuit_pass():
+    # common practice, no source: a load-correction (R–C bypass) device across a few
+    # LED lamps on a leading-edge dimmer lets the switch hold.
+    c = Circuit(name="three LEDs", dimmer=Dimmer(control="phase", wiring="with-neutral", rc_diac=None),
+                loads=(ElectronicDriver(name="5 W LED", count=3, rated_power_w=5.0),))
+    assert evaluate(c).verdict is Verdict.UNSUITABLE
+    corr = smallest_correction(c)
+    assert corr is not None
+    fixed = evaluate(dataclasses.replace(c, correction=corr["device"]))
+    assert not [x.id for x in fixed.checks if x.status is Status.FAIL]
+    assert 0 < corr["loss_w"] < 5.0
