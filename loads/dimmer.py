@@ -22,8 +22,9 @@ Control:
   at which it drops out.
 
 Trailing edge (reverse phase): the switch closes at the voltage zero and opens at the
-set angle whatever the current; interrupting an inductive current drives the dimmer
-voltage up until the clamp (V_clamp) conducts.  A current above ``trip_current_a``
+set angle whatever the current, ramping its current linearly to zero over
+``turn_off_time_s`` centred on that angle; an inductive load resists the ramp and drives
+the dimmer voltage up, to the clamp (V_clamp) if need be.  A current above ``trip_current_a``
 turns the switch off for the rest of the half-cycle.
 
 Two-wire dimmers draw their own supply (``self_supply_a``) through the load while the
@@ -117,6 +118,8 @@ class Dimmer:
     self_supply_a: float = 0.0                # two-wire electronic dimmers: a few mA [trade]
     # trailing edge
     clamp_voltage_v: float = 400.0            # common practice, no source (a TVS above the 230 V mains peak)
+    turn_off_time_s: float = 50e-6            # common practice, no source: transistor dimmers ramp the current
+                                              # down over some tens of µs to limit interference
     trip_current_a: float = 20.0              # common practice, no source
     # phase control
     min_firing_angle_deg: float = 20.0
@@ -147,6 +150,7 @@ class Dimmer:
         for name in ("surge_peak_a", "surge_i2t_a2s", "repetitive_peak_a", "clamp_voltage_v", "trip_current_a",
                      "snubber_resistance_ohm"):
             require(getattr(self, name) > 0, name, getattr(self, name), "must be positive")
+        require(0 <= self.turn_off_time_s <= 1e-3, "turn_off_time_s", self.turn_off_time_s, "s must be 0–1 ms")
         for name in ("choke_inductance_h", "snubber_capacitance_f", "self_supply_a"):
             require(getattr(self, name) >= 0, name, getattr(self, name), "must not be negative")
         require(0 <= self.min_firing_angle_deg < self.max_firing_angle_deg <= 180, "min_firing_angle_deg",

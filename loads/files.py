@@ -83,6 +83,7 @@ _FILE_UNIT: dict[str, str] = {
     "wiring_capacitance_f": "nf",
     "timing_capacitance_f": "nf",
     "snubber_capacitance_f": "nf",
+    "turn_off_time_s": "us",
     "input_capacitance_f": "nf",
     "parallel_capacitance_f": "nf",
     "series_capacitance_f": "nf",

@@ -9,9 +9,10 @@ neutral.  Unknowns y (index constants below):
     L_c·di_sw/dt  = v_d − V_T·sat(i_sw) − r_T·i_sw   (switch on; algebraic if L_c = 0)
              0    = i_sw                              (switch off)
              0    = i_L − i_sw − i_sn − i_t − i_ss − i_clamp − G_leak·v_d   (KCL, dimmer)
-    C_b·dv_b/dt   = i_L − Σ_k n_k·i_k(v_b, x_k)                  load terminal
+    C_b·dv_b/dt   = i_L − Σ_k n_k·i_k(v_b, x_k) − (v_b − v_w)/R_w  load terminal
     C_sn·dv_sn/dt = i_sn = (v_d − v_sn)/R_sn                     snubber
     C_t·dv_t/dt   = (v_d − v_t)/R_t − i_diac                     timing capacitor
+    C_w·dv_w/dt   = (v_b − v_w)/R_w                               cable capacitance (damped)
     M_k·dx_k/dt   = f_k(v_b, x_k)                                 each load unit's states
 
 i.e. a semi-explicit DAE  M·y' = F(t, y, mode)  with a diagonal, mode-dependent mass M
@@ -52,13 +53,13 @@ from loads import linear as _lin
 from loads import transformer as _tr
 
 # --- unknowns ---------------------------------------------------------------------
-IL, ISW, VD, VB, VSN, VT = range(6)
-N_CORE = 6
+IL, ISW, VD, VB, VSN, VT, VW = range(7)
+N_CORE = 7
 
 # --- circuit parameters P[...] -----------------------------------------------------
 (VPK, OMEGA, RS, LS, CB, LC, RON, VTD, IH, ILATCH, IGT, GATEW, RSN, CSN, RT, CT,
  VBOP, VBON, VONP, VONN, RG, IDOFF, ISS, VCL, RCL, TRIP, ALPHA, GLEAK, HMAX, RTOL,
- EVTOL, EARLY, N_P) = range(33)
+ EVTOL, EARLY, TRAMP, CW, RW, N_P) = range(36)
 
 # --- integer parameters IP[...] ----------------------------------------------------
 EDGE, CONTROL, NOFIRE, NG, NY, N_IP = range(6)
@@ -70,7 +71,7 @@ SW_ON, GATE, LATCHED, DIAC_ON, DIAC_POL, CLAMP, HCIDX, FIRE_HC, TRIPPED, CPOL, N
 # followed by one mode per group
 
 # --- discrete state Q[...] (floats) ------------------------------------------------
-GATE_END, T_FIRE, T_OFF, HC_START, N_Q = range(5)
+GATE_END, T_FIRE, T_OFF, HC_START, RAMP_I0, T_RAMP_END, N_Q = range(7)
 # followed by (level, sense accumulator) per group
 
 # --- half-cycle record columns -------------------------------------------------------
@@ -82,6 +83,7 @@ O_E, O_VB, O_IL, O_ISW, O_VD, O_VT, N_O0 = range(7)
 
 # --- load kinds --------------------------------------------------------------------
 K_FILAMENT, K_MAGNETIC, K_DRIVER, K_ETRANS, K_LINEAR = range(5)
+RAMPING = 2          # S[SW_ON] while a trailing-edge switch ramps its current down
 
 GAMMA = 2.0 - math.sqrt(2.0)
 D_COEF = GAMMA / 2.0
@@ -187,6 +189,21 @@ def _diac_current(y, P, S):
 
 
 @numba.njit(cache=True, _nrt=False)
+def _open_dimmer_voltage(y, P, IP):
+    """Voltage across the open (or ramping) dimmer that its non-clamp paths need to carry
+    the line current less the switch's (the self-supply taken at its linear slope)."""
+    g = P[GLEAK] + P[ISS] / SELF_SUPPLY_KNEE_V
+    i0 = y[IL] - y[ISW]
+    if P[CSN] > 0.0:
+        g += 1.0 / P[RSN]
+        i0 += y[VSN] / P[RSN]
+    if IP[CONTROL] == RC_DIAC:
+        g += 1.0 / P[RT]
+        i0 += y[VT] / P[RT]
+    return i0 / g
+
+
+@numba.njit(cache=True, _nrt=False)
 def _clamp_current(vd, P, S):
     c = S[CLAMP]
     if c == 0:
@@ -204,8 +221,11 @@ def residual(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F):
     vd = y[VD]
     vb = y[VB]
     F[IL] = e - P[RS] * il - vd - vb
-    if S[SW_ON] != 0:
+    if S[SW_ON] == 1:
         F[ISW] = vd - P[VTD] * min(max(isw / VT_SMOOTH_A, -1.0), 1.0) - P[RON] * isw
+    elif S[SW_ON] == RAMPING:
+        # trailing-edge turn-off: the switch current is brought down linearly to zero
+        F[ISW] = Q[RAMP_I0] * (Q[T_RAMP_END] - t) / P[TRAMP] - isw
     else:
         F[ISW] = -isw
     isn = 0.0
@@ -231,17 +251,25 @@ def residual(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F):
         mode = S[N_S + g]
         itot += gn[g] * _unit_current(gk[g], vb, y, gxo[g], p, mode)
         _unit_rhs(gk[g], vb, y, gxo[g], p, mode, Q[N_Q + 2 * g], F)
+    if P[RW] > 0.0:
+        # the cable's capacitance behind its damping resistance (see loads.supply)
+        iw = (vb - y[VW]) / P[RW]
+        F[VW] = iw
+        itot += iw
+    else:
+        F[VW] = -y[VW]
     F[VB] = il - itot
 
 
 @numba.njit(cache=True, _nrt=False)
 def mass(P, IP, S, gk, gxo, gpo, gnp, GP, M):
     M[IL] = P[LS]
-    M[ISW] = P[LC] if (S[SW_ON] != 0 and P[LC] > 0.0) else 0.0
+    M[ISW] = P[LC] if (S[SW_ON] == 1 and P[LC] > 0.0) else 0.0
     M[VD] = 0.0
     M[VB] = P[CB]
     M[VSN] = P[CSN]
     M[VT] = P[CT] if IP[CONTROL] == RC_DIAC else 0.0
+    M[VW] = P[CW] if P[RW] > 0.0 else 0.0
     for g in range(IP[NG]):
         _unit_mass(gk[g], GP[gpo[g]:gpo[g] + gnp[g]], M, gxo[g])
 
@@ -273,7 +301,7 @@ def guards(y, P, IP, S, gk, gxo, gpo, gnp, GP, g):
                 g[k + 1] = idi - P[IDOFF]
                 k += 2
     else:
-        if S[SW_ON] != 0:
+        if S[SW_ON] == 1:
             g[k] = isw - P[TRIP]
             k += 1
         g[k] = abs(y[VD]) - P[VCL]
@@ -496,13 +524,14 @@ def _record_firing(t, S, Q, HC, P):
 
 
 @numba.njit(cache=True, _nrt=False)
-def _record_off(t, S, Q, HC, P, chop, y):
-    """The switch stops conducting at t; chop cuts the choke's and line's switch current."""
+def _record_off(t, S, Q, HC, P, chop, y, dropout):
+    """The switch stops conducting at t; chop cuts the choke's and line's switch current;
+    dropout: it fell below the holding current (counted as early if it is)."""
     f = S[FIRE_HC]
     if 0 <= f < HC.shape[0]:
         HC[f, H_EXT] = _angle_deg(t, HC[f, H_START], P)
     h = S[HCIDX]
-    if h == f and h < HC.shape[0]:
+    if dropout and h == f and h < HC.shape[0]:
         if _angle_deg(t, Q[HC_START], P) < 180.0 - P[EARLY]:
             HC[h, H_EARLY] += 1.0
     if chop:
@@ -581,22 +610,26 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                         if h < HC.shape[0]:
                             HC[h, H_FAILED] += 1.0
                         _chop_loads(y, y[ISW], IP, gk, gxo, gpo, gnp, gn, GP)
-                        _record_off(t, S, Q, HC, P, True, y)
+                        _record_off(t, S, Q, HC, P, True, y, False)
                         changed = True
                     elif S[CPOL] * y[ISW] < P[IH]:
                         _chop_loads(y, y[ISW], IP, gk, gxo, gpo, gnp, gn, GP)
-                        _record_off(t, S, Q, HC, P, True, y)
+                        _record_off(t, S, Q, HC, P, True, y, True)
                         changed = True
         else:
-            if S[SW_ON] != 0 and abs(y[ISW]) >= P[TRIP]:
+            if S[SW_ON] == 1 and abs(y[ISW]) >= P[TRIP]:
                 S[TRIPPED] = 1
-                _record_off(t, S, Q, HC, P, False, y)
+                _record_off(t, S, Q, HC, P, False, y, False)
                 changed = True
             c = 0
-            if y[VD] > P[VCL]:
-                c = 1
-            elif y[VD] < -P[VCL]:
-                c = -1
+            if S[SW_ON] != 1:
+                # the line current must go somewhere: where the open dimmer's other paths
+                # would need more than the clamp voltage to carry it, the clamp conducts
+                vd = _open_dimmer_voltage(y, P, IP)
+                if vd > P[VCL]:
+                    c = 1
+                elif vd < -P[VCL]:
+                    c = -1
             if c != S[CLAMP]:
                 S[CLAMP] = c
                 changed = True
@@ -638,7 +671,7 @@ def _start_half_cycle(t, P, IP, S, Q, HC):
     else:
         Q[T_FIRE] = np.inf
     if IP[EDGE] == TRAILING:
-        Q[T_OFF] = t + half - alpha_t if IP[NOFIRE] == 0 else np.inf
+        Q[T_OFF] = t + half - alpha_t - 0.5 * P[TRAMP] if IP[NOFIRE] == 0 else np.inf
     else:
         Q[T_OFF] = np.inf
 
@@ -744,7 +777,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             tf = k_hb * half + P[ALPHA] / P[OMEGA]
             Q[T_FIRE] = tf if tf > t else np.inf
         if IP[EDGE] == TRAILING and IP[NOFIRE] == 0:
-            to = (k_hb + 1) * half - P[ALPHA] / P[OMEGA]
+            to = (k_hb + 1) * half - P[ALPHA] / P[OMEGA] - 0.5 * P[TRAMP]
             Q[T_OFF] = to if to > t else np.inf
             S[SW_ON] = 1 if to > t else 0
     if abs(t - Q[T_FIRE]) < 1e-12:
@@ -771,6 +804,8 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             t_ev = min(t_ev, Q[T_FIRE])
         if Q[T_OFF] > t:
             t_ev = min(t_ev, Q[T_OFF])
+        if S[SW_ON] == RAMPING:
+            t_ev = min(t_ev, Q[T_RAMP_END])
         h = min(h, P[HMAX], t_ev - t)
         if h < 1e-13:
             h = t_ev - t
@@ -904,8 +939,17 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             event = True
         if abs(t - Q[T_OFF]) < 1e-12:
             Q[T_OFF] = np.inf
-            if S[SW_ON] != 0:
-                _record_off(t, S, Q, HC, P, False, y)
+            if S[SW_ON] == 1:
+                if P[TRAMP] > 0.0:
+                    S[SW_ON] = RAMPING
+                    Q[RAMP_I0] = y[ISW]
+                    Q[T_RAMP_END] = t + P[TRAMP]
+                else:
+                    _record_off(t, S, Q, HC, P, False, y, False)
+            event = True
+        if S[SW_ON] == RAMPING and abs(t - Q[T_RAMP_END]) < 1e-12:
+            Q[T_RAMP_END] = np.inf
+            _record_off(t - 0.5 * P[TRAMP], S, Q, HC, P, False, y, False)
             event = True
         if abs(t - t_hb) < 1e-12:
             _end_half_cycle(P, IP, S, Q, gk, gpo, gnp, GP)

@@ -243,17 +243,27 @@ def pack(circuit: Circuit, *, setting: float | None, firing_angle_deg: float | N
     P[K.OMEGA] = sup.omega_rad_s
     P[K.RS] = sup.source_resistance_ohm
     P[K.LS] = sup.source_inductance_h
-    # node capacitance at the load terminal: wiring + input capacitors.  Where there is none,
-    # the terminal voltage is algebraic – except when an inductor feeds it (line or choke) and
-    # an inductive load takes it: then two inductors meet at a node with nothing else, and
-    # the floor capacitance keeps the equations well posed (engineering choice).
-    c_node = sup.wiring_capacitance_f + sum(_terminal_capacitance_f(ld) for ld in loads)
+    # Node capacitance at the load terminal: the loads' input capacitors, plus the cable's
+    # capacitance.  Where an inductor feeds the terminal (line or choke), the cable's
+    # capacitance is kept behind a damping resistance R_w = 2·√(L/C_w): the ring of the line
+    # inductance with the cable, lightly loaded, would otherwise be an undamped high-
+    # frequency oscillation that skin effect, dielectric and core losses (not modelled)
+    # damp in a real installation (engineering choice: critical damping).  Where two
+    # inductors would meet at a node with nothing else, a floor capacitance keeps the
+    # equations well posed.
+    c_x = sum(_terminal_capacitance_f(ld) for ld in loads)
+    c_w = sup.wiring_capacitance_f
     inductive = any(ld.kind is LoadKind.MAGNETIC_TRANSFORMER or (ld.kind is LoadKind.LINEAR and ld.inductance_h > 0)
                     for ld in loads)
-    fed_by_inductor = sup.source_inductance_h > 0 or (dim.edge is Edge.LEADING and dim.choke_inductance_h > 0)
-    if c_node < MIN_NODE_CAPACITANCE_F and inductive and fed_by_inductor:
-        c_node = MIN_NODE_CAPACITANCE_F
-    P[K.CB] = c_node
+    l_feed = sup.source_inductance_h + (dim.choke_inductance_h if dim.edge is Edge.LEADING else 0.0)
+    if c_x + c_w < MIN_NODE_CAPACITANCE_F and inductive and l_feed > 0:
+        c_w = MIN_NODE_CAPACITANCE_F
+    if l_feed > 0 and c_w > 0:
+        P[K.CW] = c_w
+        P[K.RW] = 2.0 * math.sqrt(l_feed / c_w)
+        P[K.CB] = c_x
+    else:
+        P[K.CB] = c_x + c_w
     P[K.LC] = dim.choke_inductance_h if dim.edge is Edge.LEADING else 0.0
     P[K.RON] = dim.on_state_resistance_ohm
     P[K.VTD] = dim.on_state_voltage_v if dim.edge is Edge.LEADING else 0.0
@@ -291,6 +301,7 @@ def pack(circuit: Circuit, *, setting: float | None, firing_angle_deg: float | N
     P[K.RTOL] = tolerance
     P[K.EVTOL] = EVENT_TOL_S
     P[K.EARLY] = EARLY_DROPOUT_DEG
+    P[K.TRAMP] = dim.turn_off_time_s if dim.edge is Edge.TRAILING else 0.0
 
     gk, gxo, gpo, gnp, gn, chunks = [], [], [], [], [], []
     xo, po = K.N_CORE, 0
@@ -310,7 +321,7 @@ def pack(circuit: Circuit, *, setting: float | None, firing_angle_deg: float | N
     IP = np.array([0 if dim.edge is Edge.LEADING else 1, 0 if dim.control is Control.PHASE else 1,
                    1 if no_firing else 0, len(loads), ny], dtype=np.int64)
     i_ref = max(sum(ld.count * ld.rated_power_w for ld in loads) / sup.voltage_v, 0.05)
-    scale = np.array([i_ref, i_ref, sup.peak_v, sup.peak_v, sup.peak_v, 50.0] + state_scale)
+    scale = np.array([i_ref, i_ref, sup.peak_v, sup.peak_v, sup.peak_v, 50.0, sup.peak_v] + state_scale)
     # absolute tolerances: a small share of each unknown's scale, but currents never looser
     # than a tenth of the holding current (engineering choice: the holding check needs it)
     atol = tolerance * 0.1 * scale
@@ -351,6 +362,7 @@ def _cold_state(circuit: Circuit, pk: _Packed, t0: float) -> _State:
     q = np.zeros(K.N_Q + 2 * len(pk.gk))
     q[K.T_FIRE] = np.inf
     q[K.T_OFF] = np.inf
+    q[K.T_RAMP_END] = np.inf
     for g in range(len(pk.gk)):
         q[K.N_Q + 2 * g] = 1.0          # drivers start at full level until they have decoded a half-cycle
     return _State(y=y, s=s, q=q, t_s=t0, signature=pk.signature)
