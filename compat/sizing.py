@@ -41,6 +41,8 @@ CORRECTION_SPIKE_A = 1.0
 CORRECTION_C_RANGE_F = (10e-9, 10e-6)
 CORRECTION_REL_TOL = 0.05                 # engineering choice: 5 % on the capacitance
 PREFERRED_C_F = (10e-9, 15e-9, 22e-9, 33e-9, 47e-9, 68e-9)   # E6 series (common practice, no source)
+# coarse scan: the E3 series over the range (engineering choice: 10 evaluations per resistor)
+CORRECTION_C_GRID_F = tuple(b * 10.0 ** e for e in range(-8, -4) for b in (1.0, 2.2, 4.7))
 
 
 def _failing(circuit: Circuit, ids, simulator=None, settings=SEARCH_SETTINGS) -> list[str]:
@@ -155,8 +157,9 @@ _ALL = set(LOW_SIDE) | set(HIGH_SIDE) | {"edge-match", "dc-offset", "turn-off-su
 
 
 def smallest_correction(circuit: Circuit, simulator=None) -> dict | None:
-    """The smallest correction capacitance (log bisection, for each series resistor of
-    ``correction_resistances_ohm``) with which no check fails, rounded up to E6; its
+    """The smallest correction capacitance (a coarse scan, then log bisection, for each
+    series resistor of ``correction_resistances_ohm``) with which no check fails,
+    rounded up to E6; its
     loss from a steady simulation at full.  None if no device in range passes."""
     best = None
     for r in correction_resistances_ohm(circuit):
@@ -167,9 +170,14 @@ def smallest_correction(circuit: Circuit, simulator=None) -> dict | None:
             except RuntimeError:            # the simulator gave up on this circuit: not a pass
                 return False
 
-        lo, hi = CORRECTION_C_RANGE_F
-        if not ok(hi):
+        # passing need not be monotonic in C (a large C brings its own spikes), so scan
+        # a coarse grid upward for the first pass, then bisect below it
+        grid = [c for c in CORRECTION_C_GRID_F if CORRECTION_C_RANGE_F[0] <= c <= CORRECTION_C_RANGE_F[1]]
+        first = next((k for k, c in enumerate(grid) if ok(c)), None)
+        if first is None:
             continue
+        hi = grid[first]
+        lo = grid[first - 1] if first > 0 else CORRECTION_C_RANGE_F[0] / 2
         while hi / lo > 1 + CORRECTION_REL_TOL:
             mid = math.sqrt(lo * hi)
             if ok(mid):

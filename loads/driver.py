@@ -73,9 +73,12 @@ class ElectronicDriver(LoadGroup):
 #   bus:        C_bulk · dv_bus/dt = |i_br| − i_conv,
 #               i_conv = P_conv · level / v_bus   while the converter runs
 #   converter:  starts when v_bus ≥ V_start, stops when v_bus ≤ V_stop (hysteresis)
-#   decode:     each half-cycle the driver measures the share c of it during which
-#               |v| > V_sense, and moves its level toward decode(c) (a first-order filter
-#               of FILTER_GAIN per half-cycle); light = level while running.
+#   decode:     each half-cycle the driver measures the conduction it sees, c = the time
+#               from the first rise of |v| above V_sense to its last fall below it (or the
+#               end of the half-cycle), as a share of the half-cycle, and moves its level
+#               toward decode(c) (a first-order filter of FILTER_GAIN per half-cycle);
+#               light = level while running.  A terminal that never falls below V_sense
+#               (input capacitors holding it up) reads as full conduction.
 # ---------------------------------------------------------------------------
 import math  # noqa: E402
 

@@ -72,7 +72,7 @@ SW_ON, GATE, LATCHED, DIAC_ON, DIAC_POL, CLAMP, HCIDX, FIRE_HC, TRIPPED, CPOL, N
 
 # --- discrete state Q[...] (floats) ------------------------------------------------
 GATE_END, T_FIRE, T_OFF, HC_START, RAMP_I0, T_RAMP_END, N_Q = range(7)
-# followed by (level, sense accumulator) per group
+# followed by four per group: (level, t_up, t_down, sense state) – see _sense_edges
 
 # --- half-cycle record columns -------------------------------------------------------
 (H_START, H_FIRE, H_EXT, H_FIRINGS, H_FAILED, H_EARLY, H_ABOVE, H_PEAK_SW, H_PEAK_LINE,
@@ -250,7 +250,7 @@ def residual(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F):
         p = GP[gpo[g]:gpo[g] + gnp[g]]
         mode = S[N_S + g]
         itot += gn[g] * _unit_current(gk[g], vb, y, gxo[g], p, mode)
-        _unit_rhs(gk[g], vb, y, gxo[g], p, mode, Q[N_Q + 2 * g], F)
+        _unit_rhs(gk[g], vb, y, gxo[g], p, mode, Q[N_Q + 4 * g], F)
     if P[RW] > 0.0:
         # the cable's capacitance behind its damping resistance (see loads.supply)
         iw = (vb - y[VW]) / P[RW]
@@ -326,7 +326,7 @@ def outputs(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o):
         p = GP[gpo[g]:gpo[g] + gnp[g]]
         mode = S[N_S + g]
         o[N_O0 + g] = gn[g] * _unit_current(gk[g], vb, y, gxo[g], p, mode)
-        o[N_O0 + ng + g] = _unit_light_state(gk[g], vb, y, gxo[g], p, mode, Q[N_Q + 2 * g])
+        o[N_O0 + ng + g] = _unit_light_state(gk[g], vb, y, gxo[g], p, mode, Q[N_Q + 4 * g])
 
 
 # --------------------------------------------------------------------------- linear algebra
@@ -677,18 +677,45 @@ def _start_half_cycle(t, P, IP, S, Q, HC):
 
 
 @numba.njit(cache=True, _nrt=False)
-def _end_half_cycle(P, IP, S, Q, gk, gpo, gnp, GP):
-    """Driver phase decoders update once per half-cycle."""
+def _end_half_cycle(t, P, IP, S, Q, gk, gpo, gnp, GP):
+    """Driver phase decoders update once per half-cycle: the conduction they saw is the
+    time from the first rise of |v| above their sense level to its last fall below it
+    (or to the end of the half-cycle while it is still above)."""
     half = math.pi / P[OMEGA]
     for g in range(IP[NG]):
         if gk[g] == K_DRIVER:
-            share = Q[N_Q + 2 * g + 1] / half
-            Q[N_Q + 2 * g] = _drv.decoded_level(share, Q[N_Q + 2 * g], GP[gpo[g]:gpo[g] + gnp[g]])
-            Q[N_Q + 2 * g + 1] = 0.0
+            b = N_Q + 4 * g
+            state = Q[b + 3]
+            if state == 1.0:
+                share = (t - Q[b + 1]) / half
+            elif state == 2.0:
+                share = (Q[b + 2] - Q[b + 1]) / half
+            else:
+                share = 0.0
+            Q[b] = _drv.decoded_level(min(max(share, 0.0), 1.0), Q[b], GP[gpo[g]:gpo[g] + gnp[g]])
+            if state == 1.0:
+                Q[b + 1] = t          # still above: the next half-cycle starts seen
+            else:
+                Q[b + 1] = np.inf
+                Q[b + 3] = 0.0
 
 
 @numba.njit(cache=True, _nrt=False)
-def _accumulate(h, o0, og, o1, P, IP, S, Q, HC, gk, gpo, gnp, GP):
+def _sense_edges(t0, t1, a, b, thr, Q, base):
+    """Record where |v| (linear from a at t0 to b at t1) crosses a driver's sense level:
+    state 0 not yet above in this half-cycle, 1 above, 2 was above and fell below."""
+    if a < thr <= b:
+        tc = t0 + (thr - a) / (b - a) * (t1 - t0)
+        if Q[base + 3] == 0.0:
+            Q[base + 1] = tc
+        Q[base + 3] = 1.0
+    elif a >= thr > b:
+        Q[base + 2] = t0 + (a - thr) / (a - b) * (t1 - t0)
+        Q[base + 3] = 2.0
+
+
+@numba.njit(cache=True, _nrt=False)
+def _accumulate(t, h, o0, og, o1, P, IP, S, Q, HC, gk, gpo, gnp, GP):
     k = S[HCIDX]
     if k >= HC.shape[0]:
         return
@@ -707,7 +734,9 @@ def _accumulate(h, o0, og, o1, P, IP, S, Q, HC, gk, gpo, gnp, GP):
     for g in range(IP[NG]):
         if gk[g] == K_DRIVER:
             thr = GP[gpo[g] + _drv._VSENSE]
-            Q[N_Q + 2 * g + 1] += h * _share_above(abs(o0[O_VB]), abs(og[O_VB]), abs(o1[O_VB]), thr)
+            tg = t + GAMMA * h
+            _sense_edges(t, tg, abs(o0[O_VB]), abs(og[O_VB]), thr, Q, N_Q + 4 * g)
+            _sense_edges(tg, t + h, abs(og[O_VB]), abs(o1[O_VB]), thr, Q, N_Q + 4 * g)
 
 
 @numba.njit(cache=True, _nrt=False)
@@ -918,7 +947,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         # accept the step [t, t + h]
         outputs(t + GAMMA * h, yg, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, og)
         outputs(t + h, y1, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o1)
-        _accumulate(h, o0, og, o1, P, IP, S, Q, HC, gk, gpo, gnp, GP)
+        _accumulate(t, h, o0, og, o1, P, IP, S, Q, HC, gk, gpo, gnp, GP)
         while ks < OUT.shape[0] and t_samp0 + ks * dt_samp <= t + h + 1e-15:
             x = (t_samp0 + ks * dt_samp - t) / h
             # quadratic through (0, o0), (γ, og), (1, o1)
@@ -952,7 +981,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             _record_off(t - 0.5 * P[TRAMP], S, Q, HC, P, False, y, False)
             event = True
         if abs(t - t_hb) < 1e-12:
-            _end_half_cycle(P, IP, S, Q, gk, gpo, gnp, GP)
+            _end_half_cycle(t, P, IP, S, Q, gk, gpo, gnp, GP)
             S[HCIDX] += 1
             _start_half_cycle(t, P, IP, S, Q, HC)
             if IP[EDGE] == TRAILING and IP[NOFIRE] == 0 and S[SW_ON] == 0:

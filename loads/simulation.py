@@ -163,6 +163,7 @@ CLAMP_RESISTANCE_OHM = 1.0        # engineering choice: slope of the trailing-ed
 EVENT_TOL_S = 1e-7                # engineering choice: events located to 0.1 µs (≈ 0.002° at 50 Hz)
 DEFAULT_TOLERANCE = 1e-3          # engineering choice: relative step tolerance (see convergence test)
 STEADY_MAX_CYCLES = 60            # engineering choice: give up looking for a periodic state after this
+STEADY_MAX_CYCLES_CORE = 240      # engineering choice: with iron cores, whose DC settles in ~1 s
 
 # Typical efficacy used only to weight lamp groups when adding their light (common
 # practice, no source): filament ~12 lm/W, low-voltage halogen ~16 lm/W, LED ~90 lm/W.
@@ -359,12 +360,13 @@ def _cold_state(circuit: Circuit, pk: _Packed, t0: float) -> _State:
         elif ld.kind is LoadKind.MAGNETIC_TRANSFORMER:
             y[xo + 2] = 300.0
     s = np.zeros(K.N_S + len(pk.gk), dtype=np.int64)
-    q = np.zeros(K.N_Q + 2 * len(pk.gk))
+    q = np.zeros(K.N_Q + 4 * len(pk.gk))
     q[K.T_FIRE] = np.inf
     q[K.T_OFF] = np.inf
     q[K.T_RAMP_END] = np.inf
     for g in range(len(pk.gk)):
-        q[K.N_Q + 2 * g] = 1.0          # drivers start at full level until they have decoded a half-cycle
+        q[K.N_Q + 4 * g] = 1.0          # drivers start at full level until they have decoded a half-cycle
+        q[K.N_Q + 4 * g + 1] = np.inf   # phase sense: no rising edge seen yet
     return _State(y=y, s=s, q=q, t_s=t0, signature=pk.signature)
 
 
@@ -497,7 +499,11 @@ def _steady(circuit: Circuit, pk: _Packed, t0: float, no_firing: bool) -> _State
     st = dataclasses.replace(st, y=y)
     prev = None
     done = 0
-    while done < STEADY_MAX_CYCLES:
+    # an iron core's DC settles over tens of cycles (L_m/R); wait for it, more finely
+    cored = any(ld.kind is LoadKind.MAGNETIC_TRANSFORMER for ld in circuit.all_loads)
+    max_cycles = STEADY_MAX_CYCLES_CORE if cored else STEADY_MAX_CYCLES
+    dc_tol = 5e-5 if cored else 1e-3
+    while done < max_cycles:
         out, hc, st, _ = _run(pk, st, 2, 40)
         done += 2
         if done == 2:
@@ -512,13 +518,19 @@ def _steady(circuit: Circuit, pk: _Packed, t0: float, no_firing: bool) -> _State
                         pass
             st = dataclasses.replace(st, y=y)
             continue
-        sig = np.concatenate([hc[-2:, K.H_VI], np.nan_to_num(hc[-2:, K.H_FIRE], nan=-1.0), hc[-2:, K.H_FIRINGS]])
+        # the DC line current settles with the slowest time constant (an iron core's
+        # magnetising L/R, ~1 s), so it is watched too
+        dc = np.sum(hc[-2:, K.H_I])
+        rms = math.sqrt(max(np.sum(hc[-2:, K.H_I2]), 0.0) * (pk.P[K.OMEGA] / (2 * math.pi)))
+        sig = np.concatenate([hc[-2:, K.H_VI], np.nan_to_num(hc[-2:, K.H_FIRE], nan=-1.0), hc[-2:, K.H_FIRINGS],
+                              [dc * (pk.P[K.OMEGA] / (2 * math.pi))]])
         if prev is not None:
             scale = max(np.max(np.abs(prev[:2])), 1e-3)
             d_pow = np.max(np.abs(sig[:2] - prev[:2])) / scale
             d_ang = np.max(np.abs(sig[2:4] - prev[2:4]))
-            d_fire = np.max(np.abs(sig[4:] - prev[4:]))
-            if d_pow < 2e-3 and d_ang < 0.05 and d_fire == 0:
+            d_fire = np.max(np.abs(sig[4:6] - prev[4:6]))
+            d_dc = abs(sig[6] - prev[6])
+            if d_pow < 2e-3 and d_ang < 0.05 and d_fire == 0 and d_dc < max(dc_tol * rms, 1e-6):
                 break
         prev = sig
     return st
