@@ -80,7 +80,7 @@ def walk(circuit: Circuit, settings: list[float], direction: str, sim, *, tick=N
         res = sim.simulate(circuit, setting=s, cycles=CYCLES_PER_POINT, start=state,
                            samples_per_cycle=SWEEP_SAMPLES_PER_CYCLE)
         state = res.final_state
-        point = sim._sweep_point(res, direction, s, ANALYSED_CYCLES, weights, wsum)
+        point = sim.sweep_point(res, direction, s, ANALYSED_CYCLES, weights, wsum)
         runs.append(SettingRun(direction=direction, setting=s, result=res, analysed_cycles=ANALYSED_CYCLES, point=point))
         if tick:
             tick()

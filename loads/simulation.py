@@ -602,13 +602,13 @@ def sweep(circuit: Circuit, settings: Sequence[float], direction: str = "down", 
             break
         res = simulate(circuit, setting=s, cycles=cycles_per_point, start=state, samples_per_cycle=200)
         state = res.final_state
-        points.append(_sweep_point(res, direction, s, analysed_cycles, weights, wsum))
+        points.append(sweep_point(res, direction, s, analysed_cycles, weights, wsum))
         if progress is not None:
             progress(k + 1, len(order))
     return points
 
 
-def _sweep_point(res: SimResult, direction: str, setting: float, analysed_cycles: int,
+def sweep_point(res: SimResult, direction: str, setting: float, analysed_cycles: int,
                  weights: np.ndarray, wsum: float) -> SweepPoint:
     hc = res.half_cycles
     sel = slice(len(hc) - 2 * analysed_cycles, len(hc))

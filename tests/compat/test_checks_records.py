@@ -196,7 +196,7 @@ def test_harmonics_class_a_and_not_applicable():
     r = ck.check_harmonics(FIL, [run(0.5, load_a=i, spc=spc)])
     closed = {n: chopped_sine_harmonic_rms(n, 90.0, 25.0) / class_a_limit_a(n) for n in range(2, 41)}
     worst = max(closed, key=closed.get)
-    assert r.status is Status.FAIL and r.details["order"] == worst
+    assert r.status is Status.CAUTION and r.details["order"] == worst   # over the product limit: a caution
     # atol/rtol: the FFT of the sampled jump agrees with the series to ~1e-3 A
     assert r.value == pytest.approx(chopped_sine_harmonic_rms(worst, 90.0, 25.0), abs=5e-3)
     assert r.margin == pytest.approx(1 - closed[worst], abs=0.05)
