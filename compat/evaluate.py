@@ -13,7 +13,8 @@ from __future__ import annotations
 import dataclasses
 import re
 from collections.abc import Callable
-from threading import Event
+from concurrent.futures import ThreadPoolExecutor
+from threading import Event, Lock
 
 import numpy as np
 
@@ -114,15 +115,21 @@ def gather(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress=None, can
     grid = settings_grid(settings)
     total = 2 * len(grid) + len(INRUSH_ANGLES_DEG) + 1
     done = [0]
+    lock = Lock()
 
     def tick():
-        done[0] += 1
-        if progress is not None:
-            progress(done[0], total)
+        with lock:
+            done[0] += 1
+            if progress is not None:
+                progress(done[0], total)
 
-    down = walk(circuit, grid, "down", sim, tick=tick, cancel=cancel)
-    up = walk(circuit, grid, "up", sim, tick=tick, cancel=cancel)
-    inrush = switch_on_runs(circuit, sim, tick=tick, cancel=cancel)
+    # the two sweeps are independent: the compiled integrator releases the GIL, so the
+    # upward one runs in a second thread while this one walks down
+    with ThreadPoolExecutor(max_workers=1) as pool:
+        up_future = pool.submit(walk, circuit, grid, "up", sim, tick=tick, cancel=cancel)
+        down = walk(circuit, grid, "down", sim, tick=tick, cancel=cancel)
+        inrush = switch_on_runs(circuit, sim, tick=tick, cancel=cancel)
+        up = up_future.result()
     if cancel is not None and cancel.is_set():
         raise Cancelled()
     off = sim.simulate(circuit, setting=0.0, no_firing=True, start="cold", cycles=OFF_CYCLES,

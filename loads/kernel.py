@@ -755,7 +755,7 @@ def _seg_above(a, b, level):
     return 1.0 - x if b >= level else x
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, nogil=True)
 def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         t_samp0, dt_samp, OUT, HC, counters):
     """Integrate from t0 to t_end, updating y, S, Q in place; fill OUT and HC.
