@@ -142,7 +142,8 @@ def render_sizing(result: dict) -> str:
                      f"({1000 * corr['rms_current_a']:.0f} mA); with it the circuit is {corr.get('verdict', '?')}"
                      + (f" (still failing: {', '.join(corr['failing'])})" if corr.get("failing") else "") + ".")
     else:
-        lines.append("Load-correction device: not needed, or none up to 10 µF makes the circuit pass.")
+        lines.append("Load-correction device: none suggested — nothing a bypass cures is failing, or no "
+                     "R–C bypass up to 10 µF cures it.")
     e = result.get("edge")
     if e:
         lines.append(f"With a {e['edge']}-edge dimmer the circuit would be {e['verdict']}"

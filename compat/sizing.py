@@ -158,15 +158,26 @@ _ALL = set(LOW_SIDE) | set(HIGH_SIDE) | {"edge-match", "dc-offset", "turn-off-su
 
 def smallest_correction(circuit: Circuit, simulator=None) -> dict | None:
     """The smallest correction capacitance (a coarse scan, then log bisection, for each
-    series resistor of ``correction_resistances_ohm``) with which no check fails,
-    rounded up to E6; its
+    series resistor of ``correction_resistances_ohm``) that clears every failure a
+    bypass can cure (``LOW_SIDE``) and adds none, rounded up to E6; its
     loss from a steady simulation at full.  None if no device in range passes."""
+    # a bypass can cure the low-side failures (too little load); it cannot cure an
+    # overload, a surge or a wrong edge, so those may stay failing as long as it adds no
+    # failure of its own
+    try:
+        before = set(_failing(dataclasses.replace(circuit, ranges=()), _ALL, simulator))
+    except RuntimeError:
+        before = set()
+    curable = set(LOW_SIDE)
+    if not before & curable:
+        return None
+    tolerated = before - curable
     best = None
     for r in correction_resistances_ohm(circuit):
         def ok(c, r=r):
             cc = dataclasses.replace(circuit, correction=correction_device(circuit, c, r), ranges=())
             try:
-                return not _failing(cc, _ALL, simulator)
+                return set(_failing(cc, _ALL, simulator)) <= tolerated
             except RuntimeError:            # the simulator gave up on this circuit: not a pass
                 return False
 

@@ -362,7 +362,11 @@ class SizingScreen(ModalScreen[object | None]):
             text.update(f"Sizing could not run: {message.error}")
             return
         self.device = find_device(message.result)
-        lines = _describe(message.result)
+        try:  # the same text as `dimfit size`
+            from compat.render import render_sizing
+            lines = [render_sizing(message.result)]
+        except Exception:  # noqa: BLE001 - a partial result (or a test's fake) is listed as it is
+            lines = _describe(message.result)
         if self.device is None:
             lines.append("\nNo correction device suggested.")
         text.update("\n".join(lines))

@@ -136,10 +136,11 @@ def same_value(a, b) -> bool:
 class FieldRow(Vertical):
     """Label, entry and (when invalid) the reason, for one field."""
 
-    def __init__(self, spec: FieldSpec, text: str) -> None:
+    def __init__(self, spec: FieldSpec, text: str, generation: int = 0) -> None:
         super().__init__(id="row-" + spec.dom_id, classes="field-row")
         self.spec = spec
         self.text = text
+        self.generation = generation      # which showing of a part this row belongs to
 
     def compose(self) -> ComposeResult:
         spec = self.spec
@@ -186,6 +187,7 @@ class PartEditor(VerticalScroll, can_focus=False):
         self.obj = None
         self.specs: tuple[FieldSpec, ...] = ()
         self.invalid: dict[str, str] = {}
+        self.generation = 0
 
     def compose(self) -> ComposeResult:
         if self.key is None:
@@ -203,7 +205,7 @@ class PartEditor(VerticalScroll, can_focus=False):
                          "[b]F7[/b] sizes one for this circuit.", classes="editor-note")
             return
         for spec in self.specs:
-            yield FieldRow(spec, field_text(self.obj, spec))
+            yield FieldRow(spec, field_text(self.obj, spec), self.generation)
 
     def _title(self) -> str:
         if self.key and self.key.startswith("load:"):
@@ -220,6 +222,7 @@ class PartEditor(VerticalScroll, can_focus=False):
                 self._refresh_values()
             return
         self.key, self.obj, self.specs, self.invalid = key, obj, specs, {}
+        self.generation += 1              # events still queued from the old fields are ignored
         self._focus_obj = obj
         await self.recompose()
 
@@ -248,6 +251,9 @@ class PartEditor(VerticalScroll, can_focus=False):
         return next((s for s in self.specs if s.dom_id == widget.id), None)
 
     def _apply(self, widget: Widget, value_or_text, *, typed: bool) -> None:
+        owner = next((a for a in widget.ancestors if isinstance(a, FieldRow)), None)
+        if owner is None or owner.generation != self.generation:
+            return                        # a field of the part shown before: not this part's edit
         spec = self._spec_for(widget)
         if spec is None:
             return
