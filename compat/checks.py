@@ -398,8 +398,8 @@ def check_breaker(circuit: Circuit, inrush: Sequence[tuple[float, SimResult]],
                "max_counts": dict(max_counts or {})}
     counts = ""
     if max_counts:
-        counts = " It holds at most " + ", ".join(
-            (f"{n} × {k}" if n > 0 else f"not even one {k}") for k, n in max_counts.items()) + " (others unchanged)."
+        counts = " With the other groups as they are, it holds at most " + "; ".join(
+            f"{n} × {k}" for k, n in max_counts.items()) + "."
     better = breaker_band.holding_curve(peak, b.rated_current_a)
     remedy = None
     if j.zone is not breaker_band.TripZone.HOLDS:
@@ -457,6 +457,7 @@ def check_off_state(circuit: Circuit, off: SimResult | None, analysed_cycles: in
                "snubber_estimate_a": capacitive_current_a(circuit.dimmer.snubber_capacitance_f, circuit.supply.voltage_v,
                                                           circuit.supply.frequency_hz)}
     m = _margin(worst_light, lim)
+    worst_light = round(worst_light, 8)     # a cold filament's 1e-30 is shown as 0
     if not np.any(on):
         return _res("off-state", Status.PASS, 100 * worst_light, 100 * lim, "%", m,
                     f"With the dimmer off, {1000 * leak:.1f} mA leaks through the lamps and none of them lights.",

@@ -80,7 +80,7 @@ _DIMMER_LEADING = (
     _f("gate_trigger_current_a", "Gate trigger current", "A", "m"),
     _f("on_state_voltage_v", "On-state voltage", "V", ""),
     _f("on_state_resistance_ohm", "On-state resistance", "Ω", "m"),
-    _f("surge_peak_a", "Surge peak (1 half-cycle)", "A", ""),
+    _f("surge_peak_a", "Surge peak", "A", ""),
     _f("surge_i2t_a2s", "Surge I²t", "A²s", ""),
     _f("repetitive_peak_a", "Repetitive peak current", "A", ""),
 )
