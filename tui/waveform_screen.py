@@ -24,6 +24,7 @@ from tui.units import format_number, format_quantity
 from textual_plotext import PlotextPlot
 
 CYCLES_SHOWN = 3          # engineering choice: enough to see both polarities and repeatability
+SETTLE_CYCLES = 4         # engineering choice: cycles run after a knob move before the plotted ones
 STEP = 0.05               # engineering choice: 20 steps across the knob's travel
 FINE_STEP = 0.01
 DEBOUNCE_S = 0.25         # engineering choice: holding [ or ] runs one simulation, not many
@@ -122,7 +123,15 @@ class WaveformScreen(Screen):
     @work(thread=True, exclusive=True, group="simulate", exit_on_error=False)
     def _simulate(self, setting: float, cancel: threading.Event) -> None:
         try:
-            result = self.services.simulate(self.circuit, setting=setting, cycles=CYCLES_SHOWN, start="steady")
+            # like a hand on the knob: each setting starts from where the last one left the
+            # circuit (timing capacitor, filaments, bus voltages), so drop-out and snap-on
+            # show as they happen; the first starts from the steady state
+            previous = getattr(self.result, "final_state", None) or "steady"
+            cycles = CYCLES_SHOWN + (SETTLE_CYCLES if previous != "steady" else 0)
+            try:
+                result = self.services.simulate(self.circuit, setting=setting, cycles=cycles, start=previous)
+            except InputError:
+                result = self.services.simulate(self.circuit, setting=setting, cycles=CYCLES_SHOWN, start="steady")
             error = None
         except InputError as exc:
             result, error = None, str(exc)
@@ -151,19 +160,23 @@ class WaveformScreen(Screen):
 
     def _plot(self) -> None:
         result = self.result
-        t_ms = [(t - float(result.t_s[0])) * 1e3 for t in result.t_s]
+        # the last CYCLES_SHOWN mains cycles of the run
+        t_last = float(result.t_s[-1]) - CYCLES_SHOWN / float(result.frequency_hz)
+        keep = [k for k, t in enumerate(result.t_s) if t >= t_last - 1e-12]
+        t0 = float(result.t_s[keep[0]])
+        t_ms = [(float(result.t_s[k]) - t0) * 1e3 for k in keep]
         voltage = self.query_one("#plot-voltage")
         plt = voltage.plt
         plt.clear_data()
         plt.clear_figure()
-        plt.plot(t_ms, list(map(float, result.supply_v)), label="supply V", marker="braille")
-        plt.plot(t_ms, list(map(float, result.load_v)), label="load V", marker="braille")
+        plt.plot(t_ms, [float(result.supply_v[k]) for k in keep], label="supply V", marker="braille")
+        plt.plot(t_ms, [float(result.load_v[k]) for k in keep], label="load V", marker="braille")
         plt.title("voltage [V]")
         current = self.query_one("#plot-current")
         plt = current.plt
         plt.clear_data()
         plt.clear_figure()
-        plt.plot(t_ms, list(map(float, result.load_a)), label="load A", marker="braille")
+        plt.plot(t_ms, [float(result.load_a[k]) for k in keep], label="load A", marker="braille")
         plt.title("load current [A]")
         plt.xlabel("time [ms]")
         voltage.refresh()

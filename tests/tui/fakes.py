@@ -124,6 +124,8 @@ class FakeSimResult:
         self.load_v = np.where(phase >= alpha, self.supply_v, 0.0)
         self.load_a = self.load_v / 800.0
         self.half_cycles = _HalfCycles(np.full(2 * cycles, alpha), np.full(2 * cycles, 180.0))
+        self.frequency_hz = f
+        self.final_state = None           # the fake carries no state between settings
 
     def last_cycle(self):
         tail = slice(-400, None)
