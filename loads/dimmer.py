@@ -4,8 +4,10 @@ Leading edge (forward phase): a triac fires at the firing angle α after each su
 zero crossing.  It turns on when gated and stays on only if its main current reaches
 the latching current I_L while the gate is still driven; once latched it turns off when
 the current falls below the holding current I_H (BIB_TEXTBOOK_TRIAC).  The on-state
-drop is V_T + r_T·i.  A series choke L_c limits di/dt; a snubber R–C sits across the
-dimmer.
+drop is V_T + r_T·i.  A current that sweeps through the holding level faster than the
+commutating dI/dt (a ring of input capacitors with the line inductance) does not turn
+the triac off: it goes on conducting until the current settles in either direction.
+A series choke L_c limits di/dt; a snubber R–C sits across the dimmer.
 
 Control:
 
@@ -112,6 +114,8 @@ class Dimmer:
     surge_peak_a: float = 80.0                # common practice, no source (a 4–8 A triac: 60–100 A for one half-cycle)
     surge_i2t_a2s: float = 30.0               # common practice, no source
     repetitive_peak_a: float = 20.0           # common practice, no source
+    commutating_di_dt_a_per_s: float = 10e3   # common practice, no source: triacs commutate a current
+                                              # falling at up to a few to tens of A/ms (0: always)
     choke_inductance_h: float = 60e-6         # REFERENCES: 40–100 µH chokes [trade]
     snubber_capacitance_f: float = 0.0
     snubber_resistance_ohm: float = 100.0     # common practice, no source
@@ -150,6 +154,8 @@ class Dimmer:
         for name in ("surge_peak_a", "surge_i2t_a2s", "repetitive_peak_a", "clamp_voltage_v", "trip_current_a",
                      "snubber_resistance_ohm"):
             require(getattr(self, name) > 0, name, getattr(self, name), "must be positive")
+        require(self.commutating_di_dt_a_per_s >= 0, "commutating_di_dt_a_per_s", self.commutating_di_dt_a_per_s,
+                "A/s must not be negative")
         require(0 <= self.turn_off_time_s <= 1e-3, "turn_off_time_s", self.turn_off_time_s, "s must be 0–1 ms")
         for name in ("choke_inductance_h", "snubber_capacitance_f", "self_supply_a"):
             require(getattr(self, name) >= 0, name, getattr(self, name), "must not be negative")

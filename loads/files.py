@@ -62,8 +62,9 @@ _UNITS: dict[str, tuple[str, float, str]] = {
     "us": ("s", 1e6, "µs"),
     "ms": ("s", 1e3, "ms"),
     "pct": ("fraction", 100.0, "%"),
+    "a_per_ms": ("a_per_s", 1e-3, "A/ms"),
 }
-_SI_SYMBOL = {"a": "A", "h": "H", "f": "F", "s": "s", "fraction": ""}
+_SI_SYMBOL = {"a": "A", "h": "H", "f": "F", "s": "s", "fraction": "", "a_per_s": "A/s"}
 
 # Fields whose file unit is not the SI unit (engineering choice: the unit printed on
 # parts and used on site – triac currents in mA, chokes in µH, film capacitors in nF,
@@ -84,6 +85,7 @@ _FILE_UNIT: dict[str, str] = {
     "timing_capacitance_f": "nf",
     "snubber_capacitance_f": "nf",
     "turn_off_time_s": "us",
+    "commutating_di_dt_a_per_s": "a_per_ms",
     "input_capacitance_f": "nf",
     "parallel_capacitance_f": "nf",
     "series_capacitance_f": "nf",

@@ -59,7 +59,7 @@ N_CORE = 7
 # --- circuit parameters P[...] -----------------------------------------------------
 (VPK, OMEGA, RS, LS, CB, LC, RON, VTD, IH, ILATCH, IGT, GATEW, RSN, CSN, RT, CT,
  VBOP, VBON, VONP, VONN, RG, IDOFF, ISS, VCL, RCL, TRIP, ALPHA, GLEAK, HMAX, RTOL,
- EVTOL, EARLY, TRAMP, CW, RW, N_P) = range(36)
+ EVTOL, EARLY, TRAMP, CW, RW, DIDTC, N_P) = range(37)
 
 # --- integer parameters IP[...] ----------------------------------------------------
 EDGE, CONTROL, NOFIRE, NG, NY, N_IP = range(6)
@@ -71,7 +71,7 @@ SW_ON, GATE, LATCHED, DIAC_ON, DIAC_POL, CLAMP, HCIDX, FIRE_HC, TRIPPED, CPOL, N
 # followed by one mode per group
 
 # --- discrete state Q[...] (floats) ------------------------------------------------
-GATE_END, T_FIRE, T_OFF, HC_START, RAMP_I0, T_RAMP_END, N_Q = range(7)
+GATE_END, T_FIRE, T_OFF, HC_START, RAMP_I0, T_RAMP_END, DIDT, N_Q = range(8)
 # followed by four per group: (level, t_up, t_down, sense state) – see _sense_edges
 
 # --- half-cycle record columns -------------------------------------------------------
@@ -84,6 +84,7 @@ O_E, O_VB, O_IL, O_ISW, O_VD, O_VT, N_O0 = range(7)
 # --- load kinds --------------------------------------------------------------------
 K_FILAMENT, K_MAGNETIC, K_DRIVER, K_ETRANS, K_LINEAR = range(5)
 RAMPING = 2          # S[SW_ON] while a trailing-edge switch ramps its current down
+CARRIED = 2          # S[LATCHED]: conducting on through a failed commutation
 
 GAMMA = 2.0 - math.sqrt(2.0)
 D_COEF = GAMMA / 2.0
@@ -289,6 +290,9 @@ def guards(y, P, IP, S, gk, gxo, gpo, gnp, GP, g):
                 k += 1
             if S[GATE] == 0 and S[LATCHED] != 0:
                 g[k] = ic - P[IH]
+                k += 1
+            if S[LATCHED] == CARRIED:
+                g[k] = -ic - P[IH]
                 k += 1
         if IP[CONTROL] == RC_DIAC:
             if S[DIAC_ON] == 0:
@@ -612,10 +616,27 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                         _chop_loads(y, y[ISW], IP, gk, gxo, gpo, gnp, gn, GP)
                         _record_off(t, S, Q, HC, P, True, y, False)
                         changed = True
+                    elif S[LATCHED] == CARRIED:
+                        # carried through a failed commutation: re-armed once the current
+                        # exceeds I_H in either direction
+                        if S[CPOL] * y[ISW] >= P[IH]:
+                            S[LATCHED] = 1
+                            changed = True
+                        elif -S[CPOL] * y[ISW] >= P[IH]:
+                            S[LATCHED] = 1
+                            S[CPOL] = -S[CPOL]
+                            changed = True
                     elif S[CPOL] * y[ISW] < P[IH]:
-                        _chop_loads(y, y[ISW], IP, gk, gxo, gpo, gnp, gn, GP)
-                        _record_off(t, S, Q, HC, P, True, y, True)
-                        changed = True
+                        if abs(Q[DIDT]) > P[DIDTC]:
+                            # the current sweeps through zero faster than the switch can
+                            # recover (commutating dI/dt): it goes on conducting
+                            S[LATCHED] = CARRIED
+                            S[CPOL] = -S[CPOL]
+                            changed = True
+                        else:
+                            _chop_loads(y, y[ISW], IP, gk, gxo, gpo, gnp, gn, GP)
+                            _record_off(t, S, Q, HC, P, True, y, True)
+                            changed = True
         else:
             if S[SW_ON] == 1 and abs(y[ISW]) >= P[TRIP]:
                 S[TRIPPED] = 1
@@ -957,6 +978,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             for c in range(no):
                 OUT[ks, c] = l0 * o0[c] + lg * og[c] + l1 * o1[c]
             ks += 1
+        Q[DIDT] = (y1[ISW] - y[ISW]) / h      # the switch current's slope over the last step
         t = t + h
         y[:] = y1
         o0[:] = o1

@@ -385,13 +385,14 @@ RC_DIAC_POT_OHM = 250e3      # the deck's pot range; our setting s = 1 − pot /
 
 def our_dimmer(**kw):
     """A Dimmer matched to the decks: no on-state voltage, 1 mΩ on-state resistance (the
-    decks' switch ron), no choke, no snubber, no self-supply."""
+    decks' switch ron), no choke, no snubber, no self-supply, and a switch that always
+    commutates at its holding current (the decks' switches have no commutation limit)."""
     from loads.dimmer import Dimmer
 
     base = dict(name="reference", edge="leading", wiring="with-neutral", control="phase",
                 on_state_voltage_v=0.0, on_state_resistance_ohm=1e-3, choke_inductance_h=0.0,
                 snubber_capacitance_f=0.0, self_supply_a=0.0, min_firing_angle_deg=10.0,
-                max_firing_angle_deg=170.0, rc_diac=None)
+                max_firing_angle_deg=170.0, rc_diac=None, commutating_di_dt_a_per_s=0.0)
     base.update(kw)
     return Dimmer(**base)
 

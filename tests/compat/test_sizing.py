@@ -57,13 +57,12 @@ def test_breaker_count_is_the_boundary_in_the_simulation():
 
 @pytest.mark.slow
 def test_correction_device_sized_by_search_makes_failing_led_circuit_pass():
-    # common practice, no source: a load-correction (R–C bypass) device across a few
-    # LED lamps on a leading-edge dimmer brings the load over the dimmer's minimum and
-    # lets the switch hold.  The lamps have a small resistive bleeder, so their own phase
-    # detection works; without one the lamps' input capacitors hold the terminal voltage
-    # up and no bypass makes them dim (see test_no_bypass_helps_lamps_without_bleeder).
-    c = Circuit(name="three LEDs", dimmer=Dimmer(control="phase", wiring="with-neutral", rc_diac=None),
-                loads=(ElectronicDriver(name="5 W LED", count=3, rated_power_w=5.0, bleeder_a=0.02),))
+    # common practice, no source: a load-correction (R–C bypass) device across LED
+    # retrofit lamps on a two-wire leading-edge dimmer keeps the switch conducting, so the
+    # lamps stop flickering.  The circuit is the built-in demo (a halogen lamp and four
+    # LED retrofits on an rc-diac dimmer), which fails holding and flicker.
+    from loads.catalogue import demo_circuit
+    c = demo_circuit()
     assert evaluate(c).verdict is Verdict.UNSUITABLE
     corr = smallest_correction(c)
     assert corr is not None

@@ -36,7 +36,8 @@ def phase_circuit(load, *, v=230.0, f=50.0, rs=0.0, ls=0.0, holding_a=0.02, gate
                                  wiring_capacitance_f=0.0),
                    dimmer=Dimmer(control="phase", rc_diac=None, on_state_voltage_v=0.0, on_state_resistance_ohm=R_ON,
                                  choke_inductance_h=0.0, holding_current_a=holding_a, latching_current_a=holding_a,
-                                 gate_window_s=gate_s, rated_load_w=5000.0, min_load_w=0.0),
+                                 gate_window_s=gate_s, rated_load_w=5000.0, min_load_w=0.0,
+                                 commutating_di_dt_a_per_s=0.0),
                    loads=[load])
 
 

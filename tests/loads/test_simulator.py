@@ -27,7 +27,7 @@ def ideal_circuit(load, *, v=120.0, f=60.0, edge="leading", holding_a=1e-3):
         dimmer=Dimmer(control="phase", edge=edge, rc_diac=None, on_state_voltage_v=0.0, on_state_resistance_ohm=R_ON,
                       choke_inductance_h=0.0, holding_current_a=holding_a, latching_current_a=holding_a,
                       rated_load_w=5000.0, min_load_w=0.0, clamp_voltage_v=1000.0, trip_current_a=1000.0,
-                      turn_off_time_s=0.0),
+                      turn_off_time_s=0.0, commutating_di_dt_a_per_s=0.0),
         loads=[load])
 
 
