@@ -9,10 +9,24 @@ Angles are measured from the supply zero crossing that starts each half-cycle [d
 """
 from __future__ import annotations
 
+import dataclasses
+import math
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from enum import StrEnum
 
 import numpy as np
+
+from loads import driver as _drv
+from loads import electronic_transformer as _et
+from loads import filament as _fil
+from loads import kernel as K
+from loads import linear as _lin
+from loads import transformer as _tr
+from loads.circuit import Circuit
+from loads.dimmer import Control, Edge
+from loads.errors import InputError
+from loads.load import LoadKind
 
 
 class Start(StrEnum):
@@ -140,20 +154,6 @@ class SweepPoint:
 # ---------------------------------------------------------------------------
 # Running the kernel
 # ---------------------------------------------------------------------------
-import dataclasses  # noqa: E402
-import math  # noqa: E402
-from typing import Callable, Sequence  # noqa: E402
-
-from loads import driver as _drv  # noqa: E402
-from loads import electronic_transformer as _et  # noqa: E402
-from loads import filament as _fil  # noqa: E402
-from loads import kernel as K  # noqa: E402
-from loads import linear as _lin  # noqa: E402
-from loads import transformer as _tr  # noqa: E402
-from loads.circuit import Circuit  # noqa: E402
-from loads.dimmer import Control, Edge  # noqa: E402
-from loads.errors import InputError  # noqa: E402
-from loads.load import LoadKind  # noqa: E402
 
 # Engineering choice: below ~1 m of cable the terminal node is still defined.
 MIN_NODE_CAPACITANCE_F = 100e-12
@@ -621,8 +621,6 @@ def sweep_point(res: SimResult, direction: str, setting: float, analysed_cycles:
     cond = ext - fire
     cond_ok = fired & np.isfinite(cond)
     cond_mean = float(np.mean(cond[cond_ok])) if cond_ok.any() else None
-    if res.setting is None:
-        pass
     glight = np.nanmean(hc.light[sel], axis=0) if n else np.zeros(len(weights))
     glight = np.nan_to_num(glight)
     total = float(np.dot(weights, glight) / wsum) if wsum > 0 else 0.0
