@@ -844,7 +844,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         ks += 1
     h = 1e-7
     fresh = True
-    jac_age = 0
+    jac_age = 0          # make_consistent above has just computed the Jacobian
     while t < t_end - 1e-13:
         # next time event
         t_ev = min(t_hb, t_end)
@@ -861,9 +861,10 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             h = t_ev - t
         mass(P, IP, S, gk, gxo, gpo, gnp, GP, M)
         residual(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F0)
-        # the Jacobian is kept between steps (modified Newton) and refreshed after events,
-        # after a failed step and every JAC_AGE steps
-        if fresh or jac_age >= JAC_AGE:
+        # the Jacobian is kept between steps (modified Newton), refreshed after a failed
+        # step and every JAC_AGE steps; after an event the consistency step has just
+        # computed it for the new modes
+        if jac_age >= JAC_AGE:
             jacobian(t, y, F0, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F1)
             jac_age = 0
         jac_age += 1
@@ -900,6 +901,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             t += CONSISTENT_STEP_S
             update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP)
             fresh = True
+            jac_age = JAC_AGE
             h = 1e-8
             continue
         fac = 2.0 if err < 1e-6 else min(2.0, 0.9 * err ** (-1.0 / 3.0))
@@ -1023,6 +1025,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
                 if not update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                     break
             fresh = True
+            jac_age = 0
             # restart from a fraction of the step that was running before the event: the
             # error test shrinks it further if the switching starts a fast transient
             h = max(0.25 * h_before, 1e-8)
