@@ -97,6 +97,7 @@ VT_SMOOTH_A = 1e-3    # engineering choice: on-state drop reaches V_T at 1 mA (k
 SELF_SUPPLY_KNEE_V = 10.0   # engineering choice: a two-wire supply draws its current once ~10 V is across it
 CONSISTENT_STEP_S = 1e-9
 NEWTON_TOL = 0.03        # engineering choice: Newton stops at 3 % of the error weights (Hairer & Wanner use 1–10 %)
+MAX_BAILS = 2000       # engineering choice: give up after this many 1 ns bail-outs in one run
 JAC_AGE = 8            # engineering choice: steps between Jacobian refreshes
 
 
@@ -776,6 +777,24 @@ def _seg_above(a, b, level):
     return 1.0 - x if b >= level else x
 
 
+@numba.njit(cache=True)
+def _bail_forward(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F0, G, work, F1, rhs,
+                  counters):
+    """Where no converging step can be found, one backward-Euler step of 1 ns (the
+    consistency step, taken at t + 1 ns) carries the state past the difficulty, and the
+    modes are brought up to date.  False once this has happened too often in one run."""
+    counters[1] += 1000000
+    if counters[1] > MAX_BAILS * 1000000:
+        return False
+    make_consistent(t + CONSISTENT_STEP_S, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv,
+                    F0, G, work, F1, rhs)
+    update_modes(t + CONSISTENT_STEP_S, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP)
+    for i in range(y.shape[0]):
+        if not np.isfinite(y[i]):
+            return False
+    return True
+
+
 @numba.njit(cache=True, nogil=True)
 def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         t_samp0, dt_samp, OUT, HC, counters):
@@ -894,12 +913,10 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         if h < 1e-12:
             # the step collapsed (a kink the Newton iteration cannot cross): take one
             # backward-Euler step of 1 ns past it, refresh the modes and go on
-            counters[1] += 1000000
-            if not make_consistent(t + CONSISTENT_STEP_S, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt,
-                                   M, J, A, piv, F0, G, work, F1, rhs):
+            if not _bail_forward(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv,
+                                 F0, G, work, F1, rhs, counters):
                 return 1
             t += CONSISTENT_STEP_S
-            update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP)
             fresh = True
             jac_age = JAC_AGE
             h = 1e-8
@@ -924,6 +941,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             yhi = y1.copy()
             yghi = yg.copy()
             hi_valid = True
+            bail = False
             while hi - lo > P[EVTOL]:
                 # earliest crossing estimate by linear interpolation of each guard
                 frac = 1.0
@@ -941,7 +959,8 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
                 if np.isinf(err2):
                     # Newton failed on the trial (a kink inside it): shrink from above
                     if hm - lo < 1e-12:
-                        return 1
+                        bail = True
+                        break
                     hi = hm
                     hi_valid = False
                     continue
@@ -959,10 +978,20 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
                 else:
                     lo = hm
                     glo[:] = gm
-            if not hi_valid:
+            if not bail and not hi_valid:
                 if np.isinf(trbdf2_step(t, hi, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
                                         yghi, yhi, Fg, F1, A, piv, G, rhs, est)):
+                    bail = True
+            if bail:
+                # the crossing cannot be reached by a converging step: step 1 ns past it
+                if not _bail_forward(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv,
+                                     F0, G, work, F1, rhs, counters):
                     return 1
+                t += CONSISTENT_STEP_S
+                fresh = True
+                jac_age = JAC_AGE
+                h = 1e-8
+                continue
             h = hi
             y1[:] = yhi
             yg[:] = yghi
