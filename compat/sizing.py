@@ -69,13 +69,7 @@ def _max_passing(ok, lo: int, hi: int) -> int:
         good = n
         if n == hi:
             return hi
-    while bad - good > 1:
-        mid = (good + bad) // 2
-        if ok(mid):
-            good = mid
-        else:
-            bad = mid
-    return good
+    return _boundary(ok, good, bad)
 
 
 def _min_passing(ok, lo: int, hi: int) -> int | None:
@@ -84,8 +78,13 @@ def _min_passing(ok, lo: int, hi: int) -> int | None:
         return None
     if ok(lo):
         return lo
-    bad, good = lo, hi
-    while good - bad > 1:
+    return _boundary(ok, hi, lo)
+
+
+def _boundary(ok, good: int, bad: int) -> int:
+    """Bisect between a passing count and a failing one (either order); the passing
+    count next to the boundary."""
+    while abs(bad - good) > 1:
         mid = (good + bad) // 2
         if ok(mid):
             good = mid
