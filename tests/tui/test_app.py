@@ -227,7 +227,10 @@ async def test_quitting_without_changes_does_not_ask():
 
 
 @sync
-async def test_keys_are_handled_during_a_slow_evaluation():
+async def test_keys_are_handled_during_a_slow_evaluation(monkeypatch):
+    # a debounce long enough that the checks right after the key press run before the
+    # re-check starts, even on a busy machine
+    monkeypatch.setattr("tui.circuit_screen.DEBOUNCE_S", 2.0)
     evaluator = FakeEvaluator(delay_s=30.0)      # far longer than the test; cancelled below
     app = make_app(evaluator=evaluator)
     async with app.run_test(size=SIZE) as pilot:
@@ -244,7 +247,7 @@ async def test_keys_are_handled_during_a_slow_evaluation():
         await wait_for(pilot, lambda: type(app.screen).__name__ == "HelpScreen")
         await pilot.press("escape")
         # the running evaluation was told to stop; the edited circuit is checked next
-        await wait_for(pilot, lambda: evaluator.cancelled >= 1 and len(evaluator.calls) == 2)
+        await wait_for(pilot, lambda: evaluator.cancelled >= 1 and len(evaluator.calls) == 2, timeout_s=10.0)
         assert evaluator.calls[1].loads[1].count == 5
         screen._cancel.set()                                          # let the worker thread end
 
