@@ -66,7 +66,9 @@ class ElectronicDriver(LoadGroup):
 # ---------------------------------------------------------------------------
 # Kernel model (one unit).  Equations:
 #
-#   bridge:     i_br = sgn(v) · max(0, |v| − 2·V_D − v_bus) / R_s        (ideal diodes, drop V_D)
+#   bridge:     i_br = sgn(v) · max(0, |v| − 2·V_D − v_bus) / R_s        (ideal diodes, drop V_D);
+#               conduction and its polarity are a mode, so inside a step the law is
+#               linear (s·v − 2·V_D − v_bus) / R_s, and its start and end are located events
 #   bleeder:    resistive  i_bl = v / R_bl,   R_bl = √2·V_rated / I_bl
 #               constant-current  i_bl = I_bl · clip(v / V_knee, −1, 1)
 #   terminal:   i = i_br + i_bl            (the input capacitor is part of the node capacitance)
@@ -97,6 +99,8 @@ _RS, _VDD, _CB, _PCONV, _VSTART, _VSTOP, _BLKIND, _BLPAR, _VSENSE, _MINL, _DIMM 
 N_PARAMS = 11
 N_STATES = 1
 RUNNING = 1
+CONDUCTING = 2                  # the bridge conducts ...
+NEGATIVE = 4                    # ... on the negative half-wave
 
 
 def pack(d: "ElectronicDriver") -> np.ndarray:
@@ -116,16 +120,21 @@ def pack(d: "ElectronicDriver") -> np.ndarray:
 
 
 @numba.njit(cache=True, _nrt=False)
-def _bridge(v, vbus, p):
-    x = abs(v) - p[_VDD] - vbus
-    if x <= 0.0:
-        return 0.0
-    return math.copysign(x / p[_RS], v)
+def _polarity(mode):
+    return -1.0 if mode & NEGATIVE else 1.0
+
+
+@numba.njit(cache=True, _nrt=False)
+def _bridge(v, vbus, p, mode):
+    """Bridge current into the bus, |i_br| (linear while the conduction mode lasts)."""
+    if mode & CONDUCTING:
+        return (_polarity(mode) * v - p[_VDD] - vbus) / p[_RS]
+    return 0.0
 
 
 @numba.njit(cache=True, _nrt=False)
 def unit_current(v, y, xo, p, mode):
-    i = _bridge(v, y[xo], p)
+    i = _polarity(mode) * _bridge(v, y[xo], p, mode)
     k = p[_BLKIND]
     if k == 1.0:
         i += v / p[_BLPAR]
@@ -140,7 +149,7 @@ def unit_rhs(v, y, xo, p, mode, level, F):
     i_conv = 0.0
     if mode & RUNNING:
         i_conv = p[_PCONV] * level / max(vbus, 1.0)
-    F[xo] = abs(_bridge(v, vbus, p)) - i_conv
+    F[xo] = _bridge(v, vbus, p, mode) - i_conv
 
 
 @numba.njit(cache=True, _nrt=False)
@@ -150,7 +159,10 @@ def unit_mass(p, M, xo):
 
 @numba.njit(cache=True, _nrt=False)
 def unit_guards(v, y, xo, p, mode, g, k):
-    g[k] = abs(v) - p[_VDD] - y[xo]
+    if mode & CONDUCTING:
+        g[k] = _polarity(mode) * v - p[_VDD] - y[xo]
+    else:
+        g[k] = abs(v) - p[_VDD] - y[xo]
     if mode & RUNNING:
         g[k + 1] = y[xo] - p[_VSTOP]
     else:
@@ -162,8 +174,15 @@ def unit_guards(v, y, xo, p, mode, g, k):
 def unit_mode(v, y, xo, p, mode):
     vbus = y[xo]
     if mode & RUNNING:
-        return RUNNING if vbus > p[_VSTOP] else 0
-    return RUNNING if vbus >= p[_VSTART] else 0
+        m = RUNNING if vbus > p[_VSTOP] else 0
+    else:
+        m = RUNNING if vbus >= p[_VSTART] else 0
+    if mode & CONDUCTING:
+        if _polarity(mode) * v - p[_VDD] - vbus > 0.0:
+            m |= mode & (CONDUCTING | NEGATIVE)
+    elif abs(v) - p[_VDD] - vbus > 0.0:
+        m |= CONDUCTING if v > 0.0 else CONDUCTING | NEGATIVE
+    return m
 
 
 @numba.njit(cache=True, _nrt=False)

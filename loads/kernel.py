@@ -93,11 +93,13 @@ LTE_C = (-3 * GAMMA ** 2 + 4 * GAMMA - 2) / (12 * (2 - GAMMA))
 W_G = 1.0 / (6.0 * GAMMA * (1.0 - GAMMA))
 W_1 = 0.5 - GAMMA * W_G
 W_0 = 1.0 - W_G - W_1
-VT_SMOOTH_A = 1e-3    # engineering choice: on-state drop reaches V_T at 1 mA (keeps it continuous through zero)
+VT_SMOOTH_MIN_A = 1e-3   # engineering choice: the on-state drop ramps over at least ±1 mA (see residual)
 SELF_SUPPLY_KNEE_V = 10.0   # engineering choice: a two-wire supply draws its current once ~10 V is across it
 CONSISTENT_STEP_S = 1e-9
 NEWTON_TOL = 0.03        # engineering choice: Newton stops at 3 % of the error weights (Hairer & Wanner use 1–10 %)
 MAX_BAILS = 2000       # engineering choice: give up after this many 1 ns bail-outs in one run
+HOLD_FAC = 1.2         # engineering choice: a step may grow by up to 20 % unused, keeping the factored matrix
+NEWTON_TOL_FIRST = 0.003   # engineering choice: a first Newton correction is accepted at 1/10 of NEWTON_TOL
 JAC_AGE = 8            # engineering choice: steps between Jacobian refreshes
 
 
@@ -224,7 +226,10 @@ def residual(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F):
     vb = y[VB]
     F[IL] = e - P[RS] * il - vd - vb
     if S[SW_ON] == 1:
-        F[ISW] = vd - P[VTD] * min(max(isw / VT_SMOOTH_A, -1.0), 1.0) - P[RON] * isw
+        # the on-state drop V_T ramps linearly through zero over ±I_H: continuous, and its
+        # kinks sit where the holding guards end a step anyway (a carried current crosses
+        # zero inside the linear part)
+        F[ISW] = vd - P[VTD] * min(max(isw / max(P[IH], VT_SMOOTH_MIN_A), -1.0), 1.0) - P[RON] * isw
     elif S[SW_ON] == RAMPING:
         # trailing-edge turn-off: the switch current is brought down linearly to zero
         F[ISW] = Q[RAMP_I0] * (Q[T_RAMP_END] - t) / P[TRAMP] - isw
@@ -399,11 +404,13 @@ def jacobian(t, y, F0, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F
 
 
 @numba.njit(cache=True, _nrt=False)
-def newton(t, z, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G):
+def newton(t, z, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G, nstate):
     """Solve M·z − c·F(t, z) = rhs with the factored iteration matrix A = M − c·J.
 
     Converged when the estimated remaining correction θ/(1 − θ)·‖Δ‖ (θ the contraction
-    rate) is below NEWTON_TOL of the error weights (Hairer & Wanner's test).  On return
+    rate) is below NEWTON_TOL of the error weights (Hairer & Wanner's test); after the
+    first correction θ/(1 − θ) is the one carried in nstate[1] from earlier solves, and
+    the test is ten times stricter (NEWTON_TOL_FIRST).  On return
     F holds F(t, z) on the differential rows, recovered from M·z − c·F = rhs, and zero on
     the algebraic rows (which the iteration has solved)."""
     n = z.shape[0]
@@ -422,12 +429,19 @@ def newton(t, z, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, 
         if not np.isfinite(nrm):
             return False
         done = nrm < 1e-3
-        if it > 0 and prev > 0.0:
+        if it == 0:
+            # the contraction seen in earlier solves predicts the remaining error
+            # (Hairer & Wanner's first-iteration test)
+            if nstate[1] * nrm < NEWTON_TOL_FIRST:
+                done = True
+        elif prev > 0.0:
             theta = nrm / prev
             if theta >= 1.0 and it > 2:
                 return False
-            if theta < 1.0 and theta / (1.0 - theta) * nrm < NEWTON_TOL:
-                done = True
+            if theta < 1.0:
+                nstate[1] = theta / (1.0 - theta)
+                if nstate[1] * nrm < NEWTON_TOL:
+                    done = True
         if done:
             for i in range(n):
                 F[i] = (M[i] * z[i] - rhs[i]) / c if M[i] != 0.0 else 0.0
@@ -437,7 +451,7 @@ def newton(t, z, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, 
 
 
 @numba.njit(cache=True, _nrt=False)
-def make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F, G, work, F1, rhs):
+def make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F, G, work, F1, rhs, nstate):
     """Satisfy the algebraic rows after a mode change (backward-Euler steps of 1 ns)."""
     n = y.shape[0]
     mass(P, IP, S, gk, gxo, gpo, gnp, GP, M)
@@ -452,23 +466,29 @@ def make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, 
             rhs[i] = M[i] * y[i]
         if not lu_factor(A, piv):
             return False
-        if newton(t, y, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G):
+        if newton(t, y, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G, nstate):
             return True
     return False
 
 
 @numba.njit(cache=True, _nrt=False)
 def trbdf2_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
-                yg, y1, Fg, F1, A, piv, G, rhs, est):
-    """One TR-BDF2 step from (t, y); returns the weighted error norm (inf: failed)."""
+                yg, y1, Fg, F1, A, piv, G, rhs, est, nstate):
+    """One TR-BDF2 step from (t, y); returns the weighted error norm (inf: failed).
+    The iteration matrix M − c·J is factored unless nstate[0] says it already holds
+    this c (the caller clears nstate[0] when J or M change)."""
     n = y.shape[0]
     c = D_COEF * h
-    for i in range(n):
-        for j in range(n):
-            A[i, j] = -c * J[i, j]
-        A[i, i] += M[i]
-    if not lu_factor(A, piv):
-        return np.inf
+    nstate[1] = max(nstate[1], 1e-16) ** 0.8     # an old contraction estimate counts for less (Hairer & Wanner)
+    if nstate[0] != c:
+        for i in range(n):
+            for j in range(n):
+                A[i, j] = -c * J[i, j]
+            A[i, i] += M[i]
+        nstate[0] = c
+        if not lu_factor(A, piv):
+            nstate[0] = -1.0
+            return np.inf
     wt = est  # reuse as weights for the Newton norm
     for i in range(n):
         wt[i] = 1.0 / (atol[i] + P[RTOL] * abs(y[i]))
@@ -479,7 +499,7 @@ def trbdf2_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
         else:
             rhs[i] = 0.0
         yg[i] = y[i] + GAMMA * h * (F0[i] / M[i] if M[i] != 0.0 else 0.0)
-    if not newton(t + GAMMA * h, yg, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, Fg, G):
+    if not newton(t + GAMMA * h, yg, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, Fg, G, nstate):
         return np.inf
     # BDF2 stage to t + h
     a1 = 1.0 / (GAMMA * (2.0 - GAMMA))
@@ -487,7 +507,7 @@ def trbdf2_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
     for i in range(n):
         rhs[i] = M[i] * (a1 * yg[i] - a0 * y[i])
         y1[i] = yg[i] + (yg[i] - y[i]) * (1.0 - GAMMA) / GAMMA
-    if not newton(t + h, y1, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F1, G):
+    if not newton(t + h, y1, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F1, G, nstate):
         return np.inf
     # error estimate, filtered through the iteration matrix
     for i in range(n):
@@ -777,9 +797,29 @@ def _seg_above(a, b, level):
     return 1.0 - x if b >= level else x
 
 
+@numba.njit(cache=True, _nrt=False)
+def _modes_neutral(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, snap):
+    """Update the modes after a located crossing; True if nothing the residual reads
+    changed (switch on/off, diac, clamp, load modes)."""
+    ng = IP[NG]
+    snap[0] = S[SW_ON]
+    snap[1] = S[DIAC_ON]
+    snap[2] = S[DIAC_POL]
+    snap[3] = S[CLAMP]
+    for g in range(ng):
+        snap[4 + g] = S[N_S + g]
+    update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP)
+    if snap[0] != S[SW_ON] or snap[1] != S[DIAC_ON] or snap[2] != S[DIAC_POL] or snap[3] != S[CLAMP]:
+        return False
+    for g in range(ng):
+        if snap[4 + g] != S[N_S + g]:
+            return False
+    return True
+
+
 @numba.njit(cache=True)
 def _bail_forward(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F0, G, work, F1, rhs,
-                  counters):
+                  counters, nstate):
     """Where no converging step can be found, one backward-Euler step of 1 ns (the
     consistency step, taken at t + 1 ns) carries the state past the difficulty, and the
     modes are brought up to date.  False once this has happened too often in one run."""
@@ -787,7 +827,7 @@ def _bail_forward(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M
     if counters[1] > MAX_BAILS * 1000000:
         return False
     make_consistent(t + CONSISTENT_STEP_S, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv,
-                    F0, G, work, F1, rhs)
+                    F0, G, work, F1, rhs, nstate)
     update_modes(t + CONSISTENT_STEP_S, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP)
     for i in range(y.shape[0]):
         if not np.isfinite(y[i]):
@@ -826,6 +866,8 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
     o0 = np.zeros(no)
     og = np.zeros(no)
     o1 = np.zeros(no)
+    snap = np.zeros(4 + IP[NG], dtype=np.int64)
+    nstate = np.array([-1.0, 1.0])   # [c of the factored iteration matrix, Newton's θ/(1 − θ)]
     half = math.pi / P[OMEGA]
     for i in range(n):
         wt[i] = 1.0 / (atol[i] + P[RTOL] * abs(y[i]))
@@ -853,7 +895,8 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         _fire_phase(t, y, P, S, Q, HC)
     for _ in range(5):
         update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP)
-        make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F0, G, work, F1, rhs)
+        make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F0, G, work, F1, rhs, nstate)
+        nstate[0] = -1.0
         if not update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
             break
     outputs(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o0)
@@ -878,13 +921,17 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         h = min(h, P[HMAX], t_ev - t)
         if h < 1e-13:
             h = t_ev - t
+        m_isw = M[ISW]
         mass(P, IP, S, gk, gxo, gpo, gnp, GP, M)
+        if M[ISW] != m_isw:      # the mass matrix changes only with the switch (its choke)
+            nstate[0] = -1.0
         residual(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F0)
         # the Jacobian is kept between steps (modified Newton), refreshed after a failed
         # step and every JAC_AGE steps; after an event the consistency step has just
         # computed it for the new modes
         if jac_age >= JAC_AGE:
             jacobian(t, y, F0, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F1)
+            nstate[0] = -1.0
             jac_age = 0
         jac_age += 1
         ng0 = guards(y, P, IP, S, gk, gxo, gpo, gnp, GP, g0)
@@ -895,7 +942,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         rejected = False
         while True:
             err = trbdf2_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
-                              yg, y1, Fg, F1, A, piv, G, rhs, est)
+                              yg, y1, Fg, F1, A, piv, G, rhs, est, nstate)
             if err <= 1.0:
                 break
             counters[1] += 1
@@ -904,6 +951,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
                 h *= 0.25
                 if jac_age > 1:
                     jacobian(t, y, F0, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F1)
+                    nstate[0] = -1.0
                     jac_age = 1
                     h *= 4.0
             else:
@@ -913,8 +961,9 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         if h < 1e-12:
             # the step collapsed (a kink the Newton iteration cannot cross): take one
             # backward-Euler step of 1 ns past it, refresh the modes and go on
+            nstate[0] = -1.0
             if not _bail_forward(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv,
-                                 F0, G, work, F1, rhs, counters):
+                                 F0, G, work, F1, rhs, counters, nstate):
                 return 1
             t += CONSISTENT_STEP_S
             fresh = True
@@ -924,6 +973,8 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         fac = 2.0 if err < 1e-6 else min(2.0, 0.9 * err ** (-1.0 / 3.0))
         if rejected:
             fac = min(fac, 1.0)   # no growth right after a rejection (fewer repeat rejections)
+        if 1.0 <= fac <= HOLD_FAC:
+            fac = 1.0             # small growth is not worth a new factorisation
         h_before = h
         # located events: did any guard change sign?
         guards(y1, P, IP, S, gk, gxo, gpo, gnp, GP, g1)
@@ -953,7 +1004,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
                 hm = lo + (hi - lo) * min(max(frac, 0.05), 0.95)
                 hm = min(hm + 0.25 * P[EVTOL], hi - 0.25 * P[EVTOL]) if hi - lo > P[EVTOL] else hm
                 err2 = trbdf2_step(t, hm, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
-                                   yg, ytry, Fg, F1, A, piv, G, rhs, est)
+                                   yg, ytry, Fg, F1, A, piv, G, rhs, est, nstate)
                 gm = np.zeros(64)
                 any_c = False
                 if np.isinf(err2):
@@ -980,12 +1031,13 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
                     glo[:] = gm
             if not bail and not hi_valid:
                 if np.isinf(trbdf2_step(t, hi, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
-                                        yghi, yhi, Fg, F1, A, piv, G, rhs, est)):
+                                        yghi, yhi, Fg, F1, A, piv, G, rhs, est, nstate)):
                     bail = True
             if bail:
                 # the crossing cannot be reached by a converging step: step 1 ns past it
+                nstate[0] = -1.0
                 if not _bail_forward(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv,
-                                     F0, G, work, F1, rhs, counters):
+                                     F0, G, work, F1, rhs, counters, nstate):
                     return 1
                 t += CONSISTENT_STEP_S
                 fresh = True
@@ -1015,10 +1067,12 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         o0[:] = o1
         counters[0] += 1
         event = crossed
+        timed = False
         # time events
         if IP[CONTROL] == PHASE and IP[EDGE] == LEADING and S[GATE] != 0 and abs(t - Q[GATE_END]) < 1e-12:
             S[GATE] = 0
             event = True
+            timed = True
         if abs(t - Q[T_OFF]) < 1e-12:
             Q[T_OFF] = np.inf
             if S[SW_ON] == 1:
@@ -1029,10 +1083,12 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
                 else:
                     _record_off(t, S, Q, HC, P, False, y, False)
             event = True
+            timed = True
         if S[SW_ON] == RAMPING and abs(t - Q[T_RAMP_END]) < 1e-12:
             Q[T_RAMP_END] = np.inf
             _record_off(t - 0.5 * P[TRAMP], S, Q, HC, P, False, y, False)
             event = True
+            timed = True
         if abs(t - t_hb) < 1e-12:
             _end_half_cycle(t, P, IP, S, Q, gk, gpo, gnp, GP)
             S[HCIDX] += 1
@@ -1043,14 +1099,22 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
                 _record_firing(t, S, Q, HC, P)
             t_hb += half
             event = True
+            timed = True
         if abs(t - Q[T_FIRE]) < 1e-12:
             _fire_phase(t, y, P, S, Q, HC)
             event = True
-        if event:
+            timed = True
+        if event and crossed and not timed and _modes_neutral(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, snap):
+            # the crossing changed only what the guards watch (latching, carrying, re-arming),
+            # not the equations: the state is consistent and the Jacobian still holds
+            fresh = True
+            h = h_before * 0.25
+        elif event:
             for _ in range(5):
                 update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP)
                 make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv,
-                                F0, G, work, F1, rhs)
+                                F0, G, work, F1, rhs, nstate)
+                nstate[0] = -1.0
                 if not update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                     break
             fresh = True
