@@ -123,18 +123,26 @@ def gather(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress=None, can
             if progress is not None:
                 progress(done[0], total)
 
-    # the two sweeps are independent: the compiled integrator releases the GIL, so the
-    # upward one runs in a second thread while this one walks down
-    with ThreadPoolExecutor(max_workers=1) as pool:
-        up_future = pool.submit(walk, circuit, grid, "up", sim, tick=tick, cancel=cancel)
-        down = walk(circuit, grid, "down", sim, tick=tick, cancel=cancel)
+    def second_thread():
+        up = walk(circuit, grid, "up", sim, tick=tick, cancel=cancel)
         inrush = switch_on_runs(circuit, sim, tick=tick, cancel=cancel)
-        up = up_future.result()
+        if cancel is not None and cancel.is_set():
+            raise Cancelled()
+        off = sim.simulate(circuit, setting=0.0, no_firing=True, start="cold", cycles=OFF_CYCLES,
+                           samples_per_cycle=OFF_SAMPLES_PER_CYCLE)
+        tick()
+        return up, inrush, off
+
+    # the runs are independent but for the state each walk carries: the compiled
+    # integrator releases the GIL, so the upward walk, the switch-on and the off-state
+    # runs go in a second thread while this one walks down (from the steady state at
+    # full, the costliest start); about even shares on two cores
+    with ThreadPoolExecutor(max_workers=1) as pool:
+        second = pool.submit(second_thread)
+        down = walk(circuit, grid, "down", sim, tick=tick, cancel=cancel)
+        up, inrush, off = second.result()
     if cancel is not None and cancel.is_set():
         raise Cancelled()
-    off = sim.simulate(circuit, setting=0.0, no_firing=True, start="cold", cycles=OFF_CYCLES,
-                       samples_per_cycle=OFF_SAMPLES_PER_CYCLE)
-    tick()
     w = np.asarray(sim.reference_light_weights(circuit), dtype=float)
     w = w / w.sum() if w.sum() > 0 else w
     fine = harmonics_run(circuit, down + up, sim)
