@@ -863,6 +863,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
     wt = np.zeros(n)
     g0 = np.zeros(64)
     g1 = np.zeros(64)
+    gm = np.zeros(64)
     o0 = np.zeros(no)
     og = np.zeros(no)
     o1 = np.zeros(no)
@@ -1001,11 +1002,15 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
                         f = glo[i] / (glo[i] - ghi[i])
                         if f < frac:
                             frac = f
-                hm = lo + (hi - lo) * min(max(frac, 0.05), 0.95)
-                hm = min(hm + 0.25 * P[EVTOL], hi - 0.25 * P[EVTOL]) if hi - lo > P[EVTOL] else hm
+                if hi_valid and (hi - lo) * (1.0 - frac) < 0.5 * P[EVTOL]:
+                    # the crossing is estimated within the tolerance below hi: one trial
+                    # just short of hi brackets it (or moves hi down)
+                    hm = hi - 0.5 * P[EVTOL]
+                else:
+                    hm = lo + (hi - lo) * min(max(frac, 0.05), 0.95)
+                    hm = min(hm + 0.25 * P[EVTOL], hi - 0.25 * P[EVTOL])
                 err2 = trbdf2_step(t, hm, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
                                    yg, ytry, Fg, F1, A, piv, G, rhs, est, nstate)
-                gm = np.zeros(64)
                 any_c = False
                 if np.isinf(err2):
                     # Newton failed on the trial (a kink inside it): shrink from above
