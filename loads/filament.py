@@ -13,7 +13,6 @@ from functools import lru_cache
 import numba
 import numpy as np
 import scipy.constants as _const
-from scipy.optimize import brentq
 
 from loads import tungsten
 from loads.errors import InputError, ModelRangeWarning, require
@@ -199,6 +198,8 @@ def steady_temperature_k(lamp: Filament, v_rms: float) -> float:
     if balance(top) > 0.0:
         raise InputError(f"{v_rms:g} V would drive the filament past tungsten's melting point "
                          f"({top:.0f} K)", key="v_rms")
+    from scipy.optimize import brentq   # here, not at the top: scipy.optimize takes ~0.2 s to import
+
     # xtol/rtol: engineering choice, far below any physical significance (nK).
     return brentq(balance, t_amb, top, xtol=1e-9, rtol=1e-14, maxiter=200)
 
