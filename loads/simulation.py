@@ -324,10 +324,12 @@ def pack(circuit: Circuit, *, setting: float | None, firing_angle_deg: float | N
                    1 if no_firing else 0, len(loads), ny], dtype=np.int64)
     i_ref = max(sum(ld.count * ld.rated_power_w for ld in loads) / sup.voltage_v, 0.05)
     scale = np.array([i_ref, i_ref, sup.peak_v, sup.peak_v, sup.peak_v, 50.0, sup.peak_v] + state_scale)
-    # absolute tolerances: a small share of each unknown's scale, but currents never looser
-    # than a tenth of the holding current (engineering choice: the holding check needs it)
+    # absolute tolerances (engineering choice): a tenth of the tolerance of each unknown's
+    # scale; the line and switch currents, which pass through zero every half-cycle (and
+    # many times in a ring after firing), the tolerance of the rated current but never
+    # looser than 1 % of the holding current, the accuracy the holding check needs
     atol = tolerance * 0.1 * scale
-    atol[K.IL] = atol[K.ISW] = min(atol[K.IL], 0.01 * dim.holding_current_a)
+    atol[K.IL] = atol[K.ISW] = min(tolerance * i_ref, 0.01 * dim.holding_current_a)
     signature = (ny, tuple(gk), tuple(gnp))
     return _Packed(P=P, IP=IP, gk=np.array(gk, dtype=np.int64), gxo=np.array(gxo, dtype=np.int64),
                    gpo=np.array(gpo, dtype=np.int64), gnp=np.array(gnp, dtype=np.int64),
