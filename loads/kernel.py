@@ -455,6 +455,10 @@ def make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, 
     """Satisfy the algebraic rows after a mode change (backward-Euler steps of 1 ns)."""
     n = y.shape[0]
     mass(P, IP, S, gk, gxo, gpo, gnp, GP, M)
+    # the contraction of a 1 ns solve says nothing of a real step's: this solve starts
+    # from no estimate and leaves the steps' one as it was
+    eta = nstate[1]
+    ok = False
     for _ in range(3):
         residual(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F)
         jacobian(t, y, F, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F1)
@@ -465,10 +469,13 @@ def make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, 
             A[i, i] += M[i]
             rhs[i] = M[i] * y[i]
         if not lu_factor(A, piv):
-            return False
+            break
+        nstate[1] = 1.0
         if newton(t, y, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G, nstate):
-            return True
-    return False
+            ok = True
+            break
+    nstate[1] = eta
+    return ok
 
 
 @numba.njit(cache=True, _nrt=False)
