@@ -27,7 +27,7 @@ Trailing edge (reverse phase): the switch closes at the voltage zero and opens a
 set angle whatever the current, ramping its current linearly to zero over
 ``turn_off_time_s`` centred on that angle; an inductive load resists the ramp and drives
 the dimmer voltage up, to the clamp (V_clamp) if need be.  A current above ``trip_current_a``
-turns the switch off for the rest of the half-cycle.
+turns the switch off for the rest of the half-cycle, by the same ramp.
 
 Two-wire dimmers draw their own supply (``self_supply_a``) through the load while the
 switch is off.

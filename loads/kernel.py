@@ -667,8 +667,16 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                             changed = True
         else:
             if S[SW_ON] == 1 and abs(y[ISW]) >= P[TRIP]:
+                # overcurrent: the switch turns off as it does at its set angle, by the
+                # same current ramp (the line inductance's current goes to the clamp)
                 S[TRIPPED] = 1
-                _record_off(t, S, Q, HC, P, False, y, False)
+                Q[T_OFF] = np.inf
+                if P[TRAMP] > 0.0:
+                    S[SW_ON] = RAMPING
+                    Q[RAMP_I0] = y[ISW]
+                    Q[T_RAMP_END] = t + P[TRAMP]
+                else:
+                    _record_off(t, S, Q, HC, P, False, y, False)
                 changed = True
             c = 0
             if S[SW_ON] != 1:

@@ -219,3 +219,29 @@ def test_transformer_magnetising_peaks_grow_with_asymmetry():
         dc.append(abs(float(np.mean(hc.mean_current_a[-20:]))))
     assert peaks[0] < peaks[1] < peaks[2], peaks
     assert dc[0] < dc[1] < dc[2], dc
+
+
+@pytest.mark.analytic
+def test_a_tripping_trailing_edge_dimmer_stays_passive():
+    """Limit: the dimmer (switch, clamp, leakage) is passive, so the energy it has taken
+    from the circuit, ∫ v_dimmer · i_line dt, is never negative; and a switch that trips at
+    its overcurrent level ramps off like at its set angle, so the line current never
+    exceeds that level (physics, no source needed).  Case: 780 W of cold filaments on a
+    100 V trailing-edge dimmer with a 20 A trip, switched on at 120° — the cold inrush
+    (~15 × 8 A) trips it every half-cycle.  Before the trip became a ramp, the clamp here
+    delivered ~300 J and drove a 15 W filament past tungsten's melting point."""
+    import warnings
+
+    c = Circuit(name="trip", supply=Supply(voltage_v=100.0, frequency_hz=50.0),
+                dimmer=Dimmer(edge="trailing", control="phase", wiring="with-neutral", rc_diac=None,
+                              choke_inductance_h=0.0, trip_current_a=20.0),
+                loads=[Filament(name="small", count=1, rated_power_w=15.0, rated_voltage_v=100.0),
+                       Filament(name="big", count=4, rated_power_w=195.0, rated_voltage_v=100.0)])
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")          # a filament past its melting point warns
+        r = simulate(c, setting=1.0, cycles=2, start="cold", switch_on_deg=120.0, samples_per_cycle=20000)
+    p = r.dimmer_v * r.load_a
+    energy = np.concatenate([[0.0], np.cumsum(0.5 * (p[1:] + p[:-1]) * np.diff(r.t_s))])
+    assert energy.min() > -1e-3                 # J; numerical noise only
+    assert np.max(np.abs(r.load_a)) < 20.0 * 1.01
+    assert np.max(r.half_cycles.load_rms_v) < 10.0   # tripped every half-cycle: the lamps stay dark
