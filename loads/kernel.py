@@ -193,11 +193,11 @@ def _diac_current(y, P, S):
 
 
 @numba.njit(cache=True, _nrt=False)
-def _open_dimmer_voltage(y, P, IP):
+def _open_dimmer_voltage(y, isw, P, IP):
     """Voltage across the open (or ramping) dimmer that its non-clamp paths need to carry
-    the line current less the switch's (the self-supply taken at its linear slope)."""
+    the line current less the switch's isw (the self-supply taken at its linear slope)."""
     g = P[GLEAK] + P[ISS] / SELF_SUPPLY_KNEE_V
-    i0 = y[IL] - y[ISW]
+    i0 = y[IL] - isw
     if P[CSN] > 0.0:
         g += 1.0 / P[RSN]
         i0 += y[VSN] / P[RSN]
@@ -682,7 +682,11 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
             if S[SW_ON] != 1:
                 # the line current must go somewhere: where the open dimmer's other paths
                 # would need more than the clamp voltage to carry it, the clamp conducts
-                vd = _open_dimmer_voltage(y, P, IP)
+                # an open switch carries nothing; right after it opened at once, y still
+                # holds its old current, which a line inductance keeps flowing (but which
+                # without one simply stops)
+                isw = y[ISW] if (S[SW_ON] == RAMPING or P[LS] == 0.0) else 0.0
+                vd = _open_dimmer_voltage(y, isw, P, IP)
                 if vd > P[VCL]:
                     c = 1
                 elif vd < -P[VCL]:

@@ -222,19 +222,21 @@ def test_transformer_magnetising_peaks_grow_with_asymmetry():
 
 
 @pytest.mark.analytic
-def test_a_tripping_trailing_edge_dimmer_stays_passive():
+@pytest.mark.parametrize("turn_off_s", [50e-6, 0.0])
+def test_a_tripping_trailing_edge_dimmer_stays_passive(turn_off_s):
     """Limit: the dimmer (switch, clamp, leakage) is passive, so the energy it has taken
     from the circuit, ∫ v_dimmer · i_line dt, is never negative; and a switch that trips at
     its overcurrent level ramps off like at its set angle, so the line current never
     exceeds that level (physics, no source needed).  Case: 780 W of cold filaments on a
     100 V trailing-edge dimmer with a 20 A trip, switched on at 120° — the cold inrush
-    (~15 × 8 A) trips it every half-cycle.  Before the trip became a ramp, the clamp here
-    delivered ~300 J and drove a 15 W filament past tungsten's melting point."""
+    (~15 × 8 A) trips it every half-cycle; with a turn-off ramp, and with none (the line
+    inductance's current then goes to the clamp at once).  Before the trip became a ramp,
+    the clamp here delivered ~300 J and drove a 15 W filament past tungsten's melting point."""
     import warnings
 
     c = Circuit(name="trip", supply=Supply(voltage_v=100.0, frequency_hz=50.0),
                 dimmer=Dimmer(edge="trailing", control="phase", wiring="with-neutral", rc_diac=None,
-                              choke_inductance_h=0.0, trip_current_a=20.0),
+                              choke_inductance_h=0.0, trip_current_a=20.0, turn_off_time_s=turn_off_s),
                 loads=[Filament(name="small", count=1, rated_power_w=15.0, rated_voltage_v=100.0),
                        Filament(name="big", count=4, rated_power_w=195.0, rated_voltage_v=100.0)])
     with warnings.catch_warnings():
