@@ -574,6 +574,18 @@ def _record_off(t, S, Q, HC, P, chop, y, dropout):
 
 
 @numba.njit(cache=True, _nrt=False)
+def _start_turn_off(t, y, P, S, Q, HC):
+    """A trailing-edge switch starts turning off at t: its current ramps to zero over
+    the turn-off time (or, with none, it opens at once)."""
+    if P[TRAMP] > 0.0:
+        S[SW_ON] = RAMPING
+        Q[RAMP_I0] = y[ISW]
+        Q[T_RAMP_END] = t + P[TRAMP]
+    else:
+        _record_off(t, S, Q, HC, P, False, y, False)
+
+
+@numba.njit(cache=True, _nrt=False)
 def _series_current_index(kind, p, xo):
     """Index of a unit's inductive terminal-current state, or −1."""
     if kind == K_MAGNETIC:
@@ -671,12 +683,7 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                 # same current ramp (the line inductance's current goes to the clamp)
                 S[TRIPPED] = 1
                 Q[T_OFF] = np.inf
-                if P[TRAMP] > 0.0:
-                    S[SW_ON] = RAMPING
-                    Q[RAMP_I0] = y[ISW]
-                    Q[T_RAMP_END] = t + P[TRAMP]
-                else:
-                    _record_off(t, S, Q, HC, P, False, y, False)
+                _start_turn_off(t, y, P, S, Q, HC)
                 changed = True
             c = 0
             if S[SW_ON] != 1:
@@ -1100,12 +1107,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         if abs(t - Q[T_OFF]) < 1e-12:
             Q[T_OFF] = np.inf
             if S[SW_ON] == 1:
-                if P[TRAMP] > 0.0:
-                    S[SW_ON] = RAMPING
-                    Q[RAMP_I0] = y[ISW]
-                    Q[T_RAMP_END] = t + P[TRAMP]
-                else:
-                    _record_off(t, S, Q, HC, P, False, y, False)
+                _start_turn_off(t, y, P, S, Q, HC)
             event = True
             timed = True
         if S[SW_ON] == RAMPING and abs(t - Q[T_RAMP_END]) < 1e-12:
