@@ -452,8 +452,10 @@ def newton(t, z, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, 
 
 @numba.njit(cache=True, _nrt=False)
 def make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F, G, work, F1, rhs, nstate):
-    """Satisfy the algebraic rows after a mode change (backward-Euler steps of 1 ns)."""
+    """Satisfy the algebraic rows after a mode change (backward-Euler steps of 1 ns).
+    It factors its own matrix into A, so nstate[0] no longer describes A afterwards."""
     n = y.shape[0]
+    nstate[0] = -1.0
     mass(P, IP, S, gk, gxo, gpo, gnp, GP, M)
     # the contraction of a 1 ns solve says nothing of a real step's: this solve starts
     # from no estimate and leaves the steps' one as it was
@@ -923,7 +925,6 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
     for _ in range(5):
         update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP)
         make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F0, G, work, F1, rhs, nstate)
-        nstate[0] = -1.0
         if not update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
             break
     outputs(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o0)
@@ -988,7 +989,6 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         if h < 1e-12:
             # the step collapsed (a kink the Newton iteration cannot cross): take one
             # backward-Euler step of 1 ns past it, refresh the modes and go on
-            nstate[0] = -1.0
             if not _bail_forward(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv,
                                  F0, G, work, F1, rhs, counters, nstate):
                 return 1
@@ -1066,7 +1066,6 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
                     bail = True
             if bail:
                 # the crossing cannot be reached by a converging step: step 1 ns past it
-                nstate[0] = -1.0
                 if not _bail_forward(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv,
                                      F0, G, work, F1, rhs, counters, nstate):
                     return 1
@@ -1140,7 +1139,6 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
                 update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP)
                 make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv,
                                 F0, G, work, F1, rhs, nstate)
-                nstate[0] = -1.0
                 if not update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                     break
             fresh = True
