@@ -19,14 +19,14 @@ from compat.perception import cie_lightness, perceived_brightness
 from compat.report import CheckResult, Status
 from compat.runs import SettingRun, samples_per_cycle, tail
 from loads.circuit import Circuit
-from loads.dimmer import Edge
+from loads.dimmer import Edge, Wiring
 from loads.driver import ElectronicDriver
 from loads.electronic_transformer import ElectronicTransformer
 from loads.linear import Linear
 from loads.simulation import EARLY_DROPOUT_DEG, SimResult
 from loads.transformer import MagneticTransformer
 
-CHECK_IDS = ("rating", "minimum-load", "edge-match", "latching", "holding", "repetitive-peak", "inrush", "breaker",
+CHECK_IDS = ("rating", "minimum-load", "edge-match", "dimmable", "latching", "holding", "repetitive-peak", "inrush", "breaker",
              "off-state", "dc-offset", "turn-off-surge", "dimming-range", "flicker", "harmonics", "dissipation")
 
 # Engineering choice: a setting gives light when its mean light exceeds 0.2 % of full
@@ -83,6 +83,21 @@ def _fmt_setting(run: SettingRun) -> str:
     return f"setting {run.setting:.2f} ({run.direction})"
 
 
+def _offer(circuit: Circuit, *options: tuple[str | None, str], lead: str = "") -> str | None:
+    """A remedy sentence from (needs, text) options, leaving out what the circuit
+    already has: needs "no-device" (no load-correction device fitted), "leading" (the
+    dimmer is leading edge, so a trailing-edge one is a change), "two-wire" (no neutral
+    at the dimmer yet), or None (always offered).  Joined as "a, b or c" after ``lead``."""
+    d = circuit.dimmer
+    has = {"no-device": circuit.correction is None, "leading": d.edge is Edge.LEADING,
+           "two-wire": d.wiring is Wiring.TWO_WIRE, None: True}
+    texts = [t for need, t in options if has[need]]
+    if not texts:
+        return None
+    body = lead + (texts[0] if len(texts) == 1 else ", ".join(texts[:-1]) + " or " + texts[-1])
+    return body[0].upper() + body[1:] + "."
+
+
 # ---------------------------------------------------------------- nameplate checks
 
 def check_rating(circuit: Circuit) -> CheckResult:
@@ -132,20 +147,69 @@ def counted_load_w(circuit: Circuit) -> tuple[float, list[tuple[str, float]]]:
     return sum(p for _, p in parts), parts
 
 
-def check_minimum_load(circuit: Circuit) -> CheckResult:
-    """Total load against the dimmer's minimum load."""
+# The simulated checks that show whether a load-correction device carries the switch
+# where the lamps' watts are below the dimmer's minimum (engineering choice: these are
+# the failures a minimum load exists to prevent).
+MIN_LOAD_EVIDENCE = ("latching", "holding", "off-state")
+
+
+def check_minimum_load(circuit: Circuit, simulated: dict[str, Status] | None = None) -> CheckResult:
+    """Total load against the dimmer's minimum load.
+
+    simulated: status of the ``MIN_LOAD_EVIDENCE`` checks on the simulated circuit.  With
+    a load-correction device fitted, the device is there to stand in for missing watts,
+    so the simulation decides: the minimum is met if the switch latches and holds and
+    the lamps stay dark when off."""
     total, parts = counted_load_w(circuit)
     m = circuit.dimmer.min_load_w
     if m <= 0:
         return _res("minimum-load", Status.PASS, total, 0.0, "W", None,
                     "The dimmer states no minimum load.", sources=("TRADE",))
     ok = total >= m
+    details = {"parts": parts}
+    if not ok and circuit.correction is not None and simulated:
+        seen = {k: simulated.get(k, Status.NOT_APPLICABLE) for k in MIN_LOAD_EVIDENCE}
+        bad = [k for k, v in seen.items() if v is Status.FAIL]
+        warn = [k for k, v in seen.items() if v is Status.CAUTION]
+        details["simulated"] = {k: str(v) for k, v in seen.items()}
+        dev = circuit.correction.name
+        if not bad:
+            status = Status.CAUTION if warn else Status.PASS
+            msg = (f"The lamps' {total:.0f} W is below the dimmer's {m:.0f} W minimum, but with {dev} fitted the "
+                   f"simulated switch latches and holds and the lamps stay dark when off"
+                   + (f" (cautions: {', '.join(warn)})." if warn else "."))
+            return _res("minimum-load", status, total, m, "W", _margin(total, m, upper=False), msg,
+                        sources=("TRADE",), details=details)
+        msg = (f"The circuit puts {total:.0f} W on a dimmer that needs at least {m:.0f} W, and {dev} does not make "
+               f"up for it: the simulation fails {', '.join(bad)}.")
+        remedy = (f"Add at least {m - total:.0f} W of load (more lamps, a filament lamp), a larger load-correction "
+                  "device, or a dimmer with a lower minimum.")
+        return _res("minimum-load", Status.FAIL, total, m, "W", _margin(total, m, upper=False), msg,
+                    remedy=remedy, sources=("TRADE",), details=details)
     msg = (f"The circuit puts {total:.0f} W on a dimmer that needs at least {m:.0f} W."
            if not ok else f"The circuit's {total:.0f} W is above the dimmer's {m:.0f} W minimum.")
-    remedy = None if ok else (f"Add at least {m - total:.0f} W of load (more lamps, a filament lamp), "
-                              "fit a load-correction device across the lamps, or use a dimmer with a lower minimum.")
+    remedy = None if ok else _offer(circuit, (None, f"add at least {m - total:.0f} W of load (more lamps, a filament lamp)"),
+                                    ("no-device", "fit a load-correction device across the lamps"),
+                                    (None, "use a dimmer with a lower minimum"))
     return _res("minimum-load", Status.PASS if ok else Status.FAIL, total, m, "W", _margin(total, m, upper=False),
-                msg, remedy=remedy, sources=("TRADE",), details={"parts": parts})
+                msg, remedy=remedy, sources=("TRADE",), details=details)
+
+
+def check_dimmable(circuit: Circuit) -> CheckResult:
+    """Every lamp group made for dimming.  A driver sold as non-dimmable draws its
+    power whatever the phase: on a phase-cut dimmer it flickers, buzzes, and its input
+    parts take the dimmer's current spikes, so it fails early (TRADE)."""
+    plain = [g for g in circuit.loads if isinstance(g, ElectronicDriver) and not g.dimmable]
+    if not plain:
+        return _res("dimmable", Status.PASS, 0.0, 0.0, "lamps", None,
+                    "Every lamp group on the circuit is made for dimming.", sources=("TRADE",))
+    n = sum(g.count for g in plain)
+    names = ", ".join(g.name for g in plain)
+    return _res("dimmable", Status.FAIL, float(n), 0.0, "lamps", None,
+                f"{names} {'is' if len(plain) == 1 else 'are'} not made for dimming: on a phase-cut dimmer such lamps "
+                "flicker, buzz or fail early, and their makers rule it out.",
+                remedy="Fit lamps marked dimmable, or replace the dimmer with a plain switch.",
+                sources=("TRADE",), safety=True, details={"groups": [g.name for g in plain]})
 
 
 def load_character(group, frequency_hz: float) -> str:
@@ -241,7 +305,8 @@ def check_latching(circuit: Circuit, runs: Sequence[SettingRun], weights) -> Che
     if worst is None:
         return _res("latching", Status.FAIL, 0.0, il, "A", -1.0,
                     "The switch never conducted at any setting: the lamps stay dark.",
-                    remedy="Raise the load (more lamps or a load-correction device) or use a dimmer made for this load.",
+                    remedy=_offer(circuit, (None, "raise the load with more lamps"), ("no-device", "a load-correction device"),
+                                  (None, "use a dimmer made for this load")),
                     sources=("TEXTBOOK_TRIAC",))
     m = _margin(worst_peak, il, upper=False)
     details = {"worst_setting": worst.setting, "direction": worst.direction, "failed_settings":
@@ -252,7 +317,8 @@ def check_latching(circuit: Circuit, runs: Sequence[SettingRun], weights) -> Che
         return _res("latching", Status.FAIL, worst_peak, il, "A", min(m, 0.0),
                     f"At {_fmt_setting(r)} the switch failed to latch {n} time(s) in {len(r.half_cycles)} half-cycles, "
                     "so the lamps flicker or flash.",
-                    remedy="Raise the current at firing: more lamps, a load-correction device, or a dimmer with a lower latching current.",
+                    remedy=_offer(circuit, (None, "more lamps"), ("no-device", "a load-correction device"),
+                                  (None, "a dimmer with a lower latching current"), lead="raise the current at firing: "),
                     sources=("TEXTBOOK_TRIAC",), details=details)
     if bad_at_bottom:
         return _res("latching", Status.CAUTION, worst_peak, il, "A", m,
@@ -301,8 +367,9 @@ def check_holding(circuit: Circuit, runs: Sequence[SettingRun], weights) -> Chec
         refires = int(np.sum(np.clip(hc.firings - 1, 0, None)))
         what = (f"At {_fmt_setting(r)} the current falls below the {ih_ma:.0f} mA holding current before the half-cycle "
                 f"ends ({drops} early drop-out(s), {refires} re-firing(s) in {len(hc)} half-cycles)")
-        remedy = ("Add a load-correction device or a filament lamp so the current stays above the holding current, "
-                  "or use a trailing-edge dimmer.")
+        remedy = _offer(circuit, ("no-device", "add a load-correction device"),
+                        (None, "add a filament lamp so the current stays above the holding current"),
+                        ("leading", "use a trailing-edge dimmer"))
         details["unsteady_settings"] = [(x.direction, x.setting) for x in unsteady]
         if unsteady:
             return _res("holding", Status.FAIL, worst_ext, limit, "deg", min(m, 0.0), what + ": the lamps flicker.",
@@ -344,7 +411,8 @@ def check_repetitive_peak(circuit: Circuit, runs: Sequence[SettingRun]) -> Check
         return _res("repetitive-peak", Status.FAIL, peak, limit, "A", m,
                     f"At {_fmt_setting(worst)} the switch current peaks at {peak:.1f} A every half-cycle "
                     f"(crest factor {crest:.1f}), above its {limit:.0f} A {what}.",
-                    remedy="Fewer capacitor-input lamps on this dimmer, a trailing-edge dimmer, or a larger choke.",
+                    remedy=_offer(circuit, (None, "fewer capacitor-input lamps on this dimmer"),
+                                  ("leading", "a trailing-edge dimmer"), ("leading", "a larger choke")),
                     sources=("TRADE",), safety=True, details=details)
     return _res("repetitive-peak", Status.PASS, peak, limit, "A", m,
                 f"Half-cycle current peaks reach {peak:.2f} A (crest factor {crest:.1f}) against the {limit:.0f} A {what}.",
@@ -379,9 +447,28 @@ def check_inrush(circuit: Circuit, inrush: Sequence[tuple[float, SimResult]]) ->
                 sources=("TRADE",), safety=True, details=details)
 
 
+_ZONE_RANK = {"holds": 0, "rides-through": 1, "may-trip": 2, "trips": 3}
+
+
+def worst_surge(circuit: Circuit, inrush: Sequence[tuple[float, SimResult]]):
+    """(switch-on angle [deg], SurgeJudgement) of the switch-on run hardest on the
+    breaker: each run judged on its worst half-cycle's line I²t with its largest line
+    peak (IEC60898_1 band, two criteria; see ``compat.breaker_band``)."""
+    best = None
+    for angle, res in inrush:
+        hc = res.half_cycles
+        j = breaker_band.judge_surge(circuit.breaker, peak_current_a=float(np.max(hc.peak_line_current_a)),
+                                     i2t_a2s=float(np.max(hc.line_i2t_a2s)), frequency_hz=circuit.supply.frequency_hz)
+        key = (_ZONE_RANK[str(j.zone)], j.equivalent_rms_a, j.peak_current_a)
+        if best is None or key > best[0]:
+            best = (key, angle, j)
+    return best[1], best[2]
+
+
 def check_breaker(circuit: Circuit, inrush: Sequence[tuple[float, SimResult]],
                   max_counts: dict[str, int] | None = None) -> CheckResult:
-    """Circuit switch-on surge against the breaker's instantaneous trip band (IEC60898_1).
+    """Circuit switch-on surge against the breaker's instantaneous trip band
+    (IEC60898_1), by its peak and by its half-cycle I²t (``compat.breaker_band``).
 
     max_counts: optionally, for each group name, the most units the breaker holds
     (found by search over the simulation, see ``compat.sizing``)."""
@@ -390,34 +477,47 @@ def check_breaker(circuit: Circuit, inrush: Sequence[tuple[float, SimResult]],
         return _na("breaker", "No breaker is given for this circuit.", sources=("IEC60898_1",), safety=True)
     if not inrush:
         return _na("breaker", "No switch-on run was simulated.", sources=("IEC60898_1",), safety=True)
-    worst_angle, peak = max(((a, float(np.max(r.half_cycles.peak_line_current_a))) for a, r in inrush),
-                            key=lambda x: x[1])
-    j = breaker_band.judge_peak(b, peak)
-    name = f"{b.rated_current_a:g} A type {b.curve}" if b.instantaneous_trip_a is None else f"{b.rated_current_a:g} A breaker"
-    details = {"switch_on_deg": worst_angle, "no_trip_peak_a": j.no_trip_peak_a, "must_trip_peak_a": j.must_trip_peak_a,
-               "max_counts": dict(max_counts or {})}
+    angle, j = worst_surge(circuit, inrush)
+    Z = breaker_band.TripZone
+    if b.instantaneous_trip_a is None:
+        lo_mult, hi_mult = (x / b.rated_current_a for x in b.band_a())
+        name = f"{b.rated_current_a:g} A type {b.curve}"
+        band = f"{lo_mult:g} × I_n = {j.no_trip_a:.0f} A rms"
+        band_hi = f"{hi_mult:g} × I_n = {j.must_trip_a:.0f} A rms"
+    else:
+        name = f"{b.rated_current_a:g} A breaker"
+        band = band_hi = f"its {j.no_trip_a:.0f} A rms instantaneous trip current"
+    surge = (f"The switch-on surge (at {angle:.0f}°) peaks at {j.peak_current_a:.0f} A for about "
+             f"{1000 * j.duration_s:.2f} ms; over its half-cycle it equals {j.equivalent_rms_a:.1f} A rms")
+    details = {"switch_on_deg": angle, "peak_current_a": j.peak_current_a, "i2t_a2s": j.i2t_a2s,
+               "duration_s": j.duration_s, "no_trip_peak_a": j.no_trip_peak_a, "no_trip_a": j.no_trip_a,
+               "must_trip_a": j.must_trip_a, "zone": str(j.zone), "max_counts": dict(max_counts or {})}
     counts = ""
     if max_counts:
         counts = " With the other groups as they are, it holds at most " + "; ".join(
             f"{n} × {k}" for k, n in max_counts.items()) + "."
-    better = breaker_band.holding_curve(peak, b.rated_current_a)
+    better = breaker_band.holding_curve(j.peak_current_a, b.rated_current_a, i2t_a2s=j.i2t_a2s,
+                                        frequency_hz=circuit.supply.frequency_hz)
     remedy = None
-    if j.zone is not breaker_band.TripZone.HOLDS:
+    if not breaker_band.holds(j.zone):
         remedy = "Split the lamps over more circuits or choose lamps with a lower switch-on surge"
         if better is not None and better != b.curve and b.instantaneous_trip_a is None:
             remedy += (f"; a type {better} breaker would hold the surge, if the circuit's fault loop impedance "
                        "allows it under local wiring rules")
         remedy += "." + counts
-    if j.zone is breaker_band.TripZone.TRIPS:
-        status, msg = Status.FAIL, (f"The switch-on surge peaks at {peak:.0f} A, above the {j.must_trip_peak_a:.0f} A "
-                                    f"at which a {name} breaker must trip.")
-    elif j.zone is breaker_band.TripZone.MAY_TRIP:
-        status, msg = Status.FAIL, (f"The switch-on surge peaks at {peak:.0f} A, inside the band where a {name} "
-                                    "breaker may trip: nuisance tripping is likely.")
+    if j.zone is Z.TRIPS:
+        status, msg = Status.FAIL, f"{surge}, at or above {band_hi}, where a {name} breaker must trip."
+    elif j.zone is Z.MAY_TRIP:
+        status, msg = Status.FAIL, (f"{surge}, inside the band between {band} and {band_hi} where a {name} breaker "
+                                    "may trip: nuisance tripping is likely.")
+    elif j.zone is Z.RIDES_THROUGH:
+        status, msg = Status.CAUTION, (f"{surge}, below the {band} a {name} breaker must hold; its peak is above "
+                                       f"{j.no_trip_peak_a:.0f} A, so a breaker with a quick release may still trip: "
+                                       "switch on a few times to confirm.")
     else:
-        status, msg = Status.PASS, (f"The switch-on surge peaks at {peak:.1f} A, below the {j.no_trip_peak_a:.0f} A "
-                                    f"a {name} breaker must hold.")
-    return _res("breaker", status, peak, j.no_trip_peak_a, "A", j.margin, msg, remedy=remedy,
+        status, msg = Status.PASS, (f"{surge}; its peak stays below the {j.no_trip_peak_a:.0f} A peak of the "
+                                    f"{band} a {name} breaker must hold.")
+    return _res("breaker", status, j.equivalent_rms_a, j.no_trip_a, "A", j.margin, msg, remedy=remedy,
                 sources=("IEC60898_1",), safety=True, details=details)
 
 
@@ -465,7 +565,10 @@ def check_off_state(circuit: Circuit, off: SimResult | None, analysed_cycles: in
     share_on = float(np.mean(on))
     period = _flash_period_s(t, on)
     details["flash_period_s"] = period
-    remedy = "Fit a load-correction device across the lamps, or use a dimmer with a neutral connection."
+    remedy = _offer(circuit, ("no-device", "fit a load-correction device across the lamps"),
+                    ("two-wire", "use a dimmer with a neutral connection"))
+    if remedy is None:
+        remedy = "Fit a larger load-correction device, or a dimmer with less off-state leakage (a smaller snubber)."
     if share_on > 0.5 and (period is None or period < 2.5 / off.frequency_hz):
         return _res("off-state", Status.CAUTION, 100 * worst_light, 100 * lim, "%", m,
                     f"With the dimmer off, {1000 * leak:.1f} mA leaks through the lamps and {gname} glows "

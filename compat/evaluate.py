@@ -107,6 +107,13 @@ def switch_on_peak_a(circuit: Circuit, sim=None) -> float:
     return max(float(np.max(r.half_cycles.peak_line_current_a)) for _, r in switch_on_runs(circuit, sim))
 
 
+def switch_on_surge(circuit: Circuit, sim=None):
+    """The switch-on run hardest on the circuit's breaker: (angle [deg],
+    ``breaker_band.SurgeJudgement``); the circuit must have a breaker."""
+    sim = sim or _default_simulator()
+    return ck.worst_surge(circuit, switch_on_runs(circuit, sim))
+
+
 def gather(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress=None, cancel=None, simulator=None) -> Evidence:
     """Every simulation the checks need, for one circuit (no ranges), sweeping
     ``settings`` points each way (``evaluate`` never asks for fewer than MIN_SETTINGS;
@@ -170,19 +177,24 @@ def harmonics_run(circuit: Circuit, runs, sim) -> SettingRun | None:
 
 
 def judge(ev: Evidence, *, breaker_counts: dict[str, int] | None = None) -> list[CheckResult]:
-    """All checks of DESIGN §4, in the table's order."""
+    """All checks, in ``checks.CHECK_IDS`` order."""
     c, w = ev.circuit, ev.light_weights
     runs = ev.runs
-    return [
+    latching = ck.check_latching(c, runs, w)
+    holding = ck.check_holding(c, runs, w)
+    off = ck.check_off_state(c, ev.off, OFF_ANALYSED_CYCLES)
+    simulated = {"latching": latching.status, "holding": holding.status, "off-state": off.status}
+    out = [
         ck.check_rating(c),
-        ck.check_minimum_load(c),
+        ck.check_minimum_load(c, simulated),
         ck.check_edge_match(c),
-        ck.check_latching(c, runs, w),
-        ck.check_holding(c, runs, w),
+        ck.check_dimmable(c),
+        latching,
+        holding,
         ck.check_repetitive_peak(c, runs),
         ck.check_inrush(c, ev.inrush),
         ck.check_breaker(c, ev.inrush, breaker_counts),
-        ck.check_off_state(c, ev.off, OFF_ANALYSED_CYCLES),
+        off,
         ck.check_dc_offset(c, runs),
         ck.check_turn_off_surge(c, runs),
         ck.check_dimming_range(c, ev.down, ev.up, w),
@@ -190,6 +202,8 @@ def judge(ev: Evidence, *, breaker_counts: dict[str, int] | None = None) -> list
         ck.check_harmonics(c, ev.harmonics or runs),
         ck.check_dissipation(c, runs),
     ]
+    assert tuple(r.id for r in out) == ck.CHECK_IDS
+    return out
 
 
 def sweep_rows(ev: Evidence) -> tuple[dict, ...]:

@@ -22,7 +22,7 @@ import math
 import numpy as np
 
 from compat import breaker_band, derating
-from compat.evaluate import evaluate, gather, judge, switch_on_peak_a
+from compat.evaluate import evaluate, gather, judge, switch_on_peak_a, switch_on_surge
 from compat.report import Status, Verdict
 from loads.circuit import Circuit
 from loads.dimmer import Control, Dimmer, Edge
@@ -95,15 +95,15 @@ def _boundary(ok, good: int, bad: int) -> int:
 
 def breaker_max_counts(circuit: Circuit, simulator=None) -> dict[str, int]:
     """For each lamp group, the most units (others unchanged) whose worst switch-on
-    surge stays below the breaker's no-trip current (IEC60898_1 band, as peak)."""
+    surge the breaker is expected to hold (IEC60898_1 band, judged by peak and
+    half-cycle I²t, see ``compat.breaker_band``)."""
     b = circuit.breaker
     if b is None:
         return {}
-    lo_peak, _ = breaker_band.band_peak_a(b)
     out = {}
     for i, g in enumerate(circuit.loads):
         def ok(n, i=i):
-            return switch_on_peak_a(_with_count(circuit, i, n), simulator) < lo_peak
+            return breaker_band.holds(switch_on_surge(_with_count(circuit, i, n), simulator)[1].zone)
         out[g.name] = _max_passing(ok, 1, MAX_COUNT)
     return out
 
@@ -263,7 +263,9 @@ def size(circuit: Circuit, progress=None, simulator=None) -> dict:
     curve = None
     bcounts = {}
     if base.breaker is not None:
-        c = breaker_band.holding_curve(peak, base.breaker.rated_current_a)
+        _, surge = switch_on_surge(base, simulator)
+        c = breaker_band.holding_curve(surge.peak_current_a, base.breaker.rated_current_a, i2t_a2s=surge.i2t_a2s,
+                                       frequency_hz=base.supply.frequency_hz)
         curve = str(c) if c is not None else None
         bcounts = breaker_max_counts(base, simulator)
     step()

@@ -51,7 +51,7 @@ class HalfCycles:
     EARLY_DROPOUT_DEG before the end of the half-cycle;
     time_above_holding_s: time the switch current was at or above the holding current [s];
     peak_current_a: largest |switch current| [A]; peak_line_current_a: largest |line current| [A];
-    i2t_a2s: ∫ i_switch² dt [A²s];
+    i2t_a2s: ∫ i_switch² dt [A²s]; line_i2t_a2s: ∫ i_line² dt, what the breaker sees [A²s];
     load_rms_v, load_rms_a: at the load terminals [V], [A]; power_w: mean v·i into the loads [W];
     mean_current_a: mean line current (its sign shows a DC component) [A];
     light: mean light per group as a fraction of that group's rated light, shape
@@ -68,6 +68,7 @@ class HalfCycles:
     peak_current_a: np.ndarray
     peak_line_current_a: np.ndarray
     i2t_a2s: np.ndarray
+    line_i2t_a2s: np.ndarray
     load_rms_v: np.ndarray
     load_rms_a: np.ndarray
     power_w: np.ndarray
@@ -470,6 +471,7 @@ def _half_cycles(hc: np.ndarray, t: np.ndarray, light: np.ndarray, kinds) -> Hal
                       failed_latches=hc[:, K.H_FAILED].astype(int), early_dropouts=hc[:, K.H_EARLY].astype(int),
                       time_above_holding_s=hc[:, K.H_ABOVE], peak_current_a=hc[:, K.H_PEAK_SW],
                       peak_line_current_a=hc[:, K.H_PEAK_LINE], i2t_a2s=hc[:, K.H_I2T],
+                      line_i2t_a2s=hc[:, K.H_I2],
                       load_rms_v=rms_v, load_rms_a=rms_a, power_w=power, mean_current_a=mean_i, light=lt)
 
 

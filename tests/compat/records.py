@@ -29,7 +29,7 @@ def half_cycles(n, *, firing=90.0, extinction=180.0, failed=0, drop=0, firings=1
                       failed_latches=arr(failed, int), early_dropouts=arr(drop, int),
                       time_above_holding_s=arr(0.005), peak_current_a=arr(peak),
                       peak_line_current_a=arr(peak if peak_line is None else peak_line),
-                      i2t_a2s=arr(i2t), load_rms_v=arr(160.0), load_rms_a=arr(0.5), power_w=arr(80.0),
+                      i2t_a2s=arr(i2t), line_i2t_a2s=arr(i2t), load_rms_v=arr(160.0), load_rms_a=arr(0.5), power_w=arr(80.0),
                       mean_current_a=arr(mean_current), light=light_a)
 
 

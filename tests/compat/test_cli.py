@@ -182,7 +182,7 @@ def _fake_result(n_cycles: int = 2) -> SimResult:
                     firings=np.where(np.isnan(fired), 0, 1), failed_latches=np.zeros(nh, int),
                     early_dropouts=np.zeros(nh, int), time_above_holding_s=np.zeros(nh),
                     peak_current_a=np.full(nh, 3.25), peak_line_current_a=np.full(nh, 3.25),
-                    i2t_a2s=np.full(nh, 0.0264), load_rms_v=np.full(nh, 115.0), load_rms_a=np.full(nh, 1.15),
+                    i2t_a2s=np.full(nh, 0.0264), line_i2t_a2s=np.full(nh, 0.0264), load_rms_v=np.full(nh, 115.0), load_rms_a=np.full(nh, 1.15),
                     power_w=np.full(nh, 132.25), mean_current_a=np.zeros(nh), light=np.zeros((nh, 1)))
     return SimResult(t_s=t, supply_v=supply, load_v=load_v, load_a=load_a, dimmer_a=load_a,
                      dimmer_v=supply - load_v, group_a=load_a[None, :], group_light=np.zeros((1, n)),

@@ -27,9 +27,7 @@ from loads.filament import Filament
 from loads.linear import Linear
 from tests.compat.records import half_cycles, run
 
-# Written before the fixes were run; each fix removes this marker for its tests.
-pytestmark = pytest.mark.xfail(strict=False, reason="expectations written before the fix")
-
+PENDING = pytest.mark.xfail(strict=False, reason="expectation written before the fix")
 PHASE_LEADING = Dimmer(control="phase", wiring="with-neutral", rc_diac=None)
 PHASE_TRAILING = Dimmer(edge="trailing", control="phase", wiring="with-neutral", rc_diac=None, choke_inductance_h=0.0)
 
@@ -146,16 +144,16 @@ def test_six_lamps_on_a_b10_never_trip_it():
 
 @pytest.mark.analytic
 def test_brief_surge_over_the_peak_band_but_under_the_half_cycle_i2t_is_a_caution():
-    # IEC 60898-1: a type-B 10 A breaker must not trip at 3 × I_n = 30 A rms, which
-    # carries (30 A)² × 10 ms = 9 A²s in a 50 Hz half-cycle.  A 100 A peak lasting
-    # ~100 µs carries about 0.5 A²s: the peak criterion says "may trip", the heat and
-    # force criterion says "holds" — the two disagree, so caution, not fail.
+    # IEC 60898-1: a type-B 10 A breaker must not trip at 3 × I_n = 30 A rms and must
+    # trip at 5 × I_n = 50 A rms.  A 100 A peak carrying 0.5 A²s (about 50 µs wide) is
+    # over the 42 A peak bound, but drives the release (4 ms lag of i²) no further than
+    # a 10 A rms sine: the two criteria disagree, so caution, not fail.
     from compat import breaker_band
     b = Breaker(curve="B", rated_current_a=10.0)
     j = breaker_band.judge_surge(b, peak_current_a=100.0, i2t_a2s=0.5, frequency_hz=50.0)
     assert j.zone is breaker_band.TripZone.RIDES_THROUGH
     j = breaker_band.judge_surge(b, peak_current_a=100.0, i2t_a2s=30.0, frequency_hz=50.0)
-    assert j.zone is breaker_band.TripZone.TRIPS              # 30 A²s is (55 A rms)² over 10 ms: past 5 × I_n
+    assert j.zone is breaker_band.TripZone.TRIPS              # 30 A²s: as far as a 74 A rms sine, past 5 × I_n
     j = breaker_band.judge_surge(b, peak_current_a=30.0, i2t_a2s=0.5, frequency_hz=50.0)
     assert j.zone is breaker_band.TripZone.HOLDS
 
@@ -178,6 +176,7 @@ def _bottom_only_failures():
     return down, up
 
 
+@PENDING
 @pytest.mark.analytic
 @pytest.mark.parametrize("trim", [True, False])
 def test_failures_only_below_a_setting_are_a_trim_matter(trim):
@@ -200,6 +199,7 @@ def test_failures_only_below_a_setting_are_a_trim_matter(trim):
 
 # ---------------------------------------------------------------- protection trips
 
+@PENDING
 @pytest.mark.slow
 def test_dimmer_protection_tripping_is_reported_as_a_shutdown():
     # common practice, no source: a transistor dimmer whose over-current protection
