@@ -201,15 +201,15 @@ def check_dimmable(circuit: Circuit) -> CheckResult:
     parts take the dimmer's current spikes, so it fails early (TRADE)."""
     plain = [g for g in circuit.loads if isinstance(g, ElectronicDriver) and not g.dimmable]
     if not plain:
-        return _res("dimmable", Status.PASS, 0.0, 0.0, "lamps", None,
+        return _res("dimmable", Status.PASS, None, None, "", None,
                     "Every lamp group on the circuit is made for dimming.", sources=("TRADE",))
     n = sum(g.count for g in plain)
     names = ", ".join(g.name for g in plain)
-    return _res("dimmable", Status.FAIL, float(n), 0.0, "lamps", None,
+    return _res("dimmable", Status.FAIL, None, None, "", None,
                 f"{names} {'is' if len(plain) == 1 else 'are'} not made for dimming: on a phase-cut dimmer such lamps "
                 "flicker, buzz or fail early, and their makers rule it out.",
                 remedy="Fit lamps marked dimmable, or replace the dimmer with a plain switch.",
-                sources=("TRADE",), safety=True, details={"groups": [g.name for g in plain]})
+                sources=("TRADE",), safety=True, details={"groups": [g.name for g in plain], "lamps": n})
 
 
 def load_character(group, frequency_hz: float) -> str:
@@ -277,6 +277,35 @@ def _clean(run: SettingRun, edge: Edge = Edge.LEADING) -> bool:
     held = edge is Edge.TRAILING or not np.any(hc.early_dropouts)
     return bool(len(hc) and np.all(np.isfinite(hc.firing_angle_deg)) and not np.any(hc.failed_latches)
                 and held and not np.any(hc.firings > 1))
+
+
+# Engineering choice: a half-cycle whose switch current reached the trip level within
+# 0.1 % tripped the trailing-edge dimmer's protection (the simulator turns the switch
+# off the moment the current reaches it).
+TRIP_REACHED = 0.999
+
+
+def tripped_half_cycles(circuit: Circuit, run: SettingRun) -> int:
+    """Analysed half-cycles in which a trailing-edge dimmer's over-current protection
+    acted [1] (0 for leading edge, which has none modelled)."""
+    d = circuit.dimmer
+    if d.edge is not Edge.TRAILING:
+        return 0
+    return int(np.sum(run.half_cycles.peak_current_a >= TRIP_REACHED * d.trip_current_a))
+
+
+def protection_summary(circuit: Circuit, runs: Sequence[SettingRun]) -> tuple[str, float] | None:
+    """One sentence on the dimmer's protection tripping, and the share of settings at
+    which it did [1]; None if it never did."""
+    tripping = [(r, tripped_half_cycles(circuit, r)) for r in runs]
+    tripping = [(r, n) for r, n in tripping if n]
+    if not tripping:
+        return None
+    r, n = max(tripping, key=lambda x: x[1])
+    settings, total = len({x.setting for x, _ in tripping}), len({x.setting for x in runs})
+    return (f"The dimmer's over-current protection trips at {settings} of {total} settings "
+            f"({n} of {len(r.half_cycles)} half-cycles at {_fmt_setting(r)}): it shuts down on the lamps' current, "
+            "so the lamps stay dark or blink"), settings / total
 
 
 def check_latching(circuit: Circuit, runs: Sequence[SettingRun], weights) -> CheckResult:
@@ -407,6 +436,13 @@ def check_repetitive_peak(circuit: Circuit, runs: Sequence[SettingRun]) -> Check
     m = _margin(peak, limit)
     what = "repetitive peak rating" if limit == d.repetitive_peak_a else "over-current trip level"
     details = {"worst_setting": worst.setting, "direction": worst.direction, "crest_factor": crest}
+    trips = protection_summary(circuit, runs)
+    if trips is not None:
+        details["protection_trips"] = True
+        return _res("repetitive-peak", Status.FAIL, peak, limit, "A", min(m, 0.0),
+                    f"{trips[0]}; the current peaks reach its {d.trip_current_a:.1f} A trip level (crest factor {crest:.1f}).",
+                    remedy="Fewer capacitor-input lamps on this dimmer, or a dimmer with a higher rating (and trip level).",
+                    sources=("TRADE",), safety=True, details=details)
     if peak > limit:
         return _res("repetitive-peak", Status.FAIL, peak, limit, "A", m,
                     f"At {_fmt_setting(worst)} the switch current peaks at {peak:.1f} A every half-cycle "
@@ -488,7 +524,7 @@ def check_breaker(circuit: Circuit, inrush: Sequence[tuple[float, SimResult]],
         name = f"{b.rated_current_a:g} A breaker"
         band = band_hi = f"its {j.no_trip_a:.0f} A rms instantaneous trip current"
     surge = (f"The switch-on surge (at {angle:.0f}°) peaks at {j.peak_current_a:.0f} A for about "
-             f"{1000 * j.duration_s:.2f} ms; over its half-cycle it equals {j.equivalent_rms_a:.1f} A rms")
+             f"{1000 * j.duration_s:.2f} ms, which moves the breaker's release as far as {j.equivalent_rms_a:.1f} A rms would")
     details = {"switch_on_deg": angle, "peak_current_a": j.peak_current_a, "i2t_a2s": j.i2t_a2s,
                "duration_s": j.duration_s, "no_trip_peak_a": j.no_trip_peak_a, "no_trip_a": j.no_trip_a,
                "must_trip_a": j.must_trip_a, "zone": str(j.zone), "max_counts": dict(max_counts or {})}
@@ -711,11 +747,22 @@ def check_dimming_range(circuit: Circuit, down: Sequence[SettingRun], up: Sequen
     curve_u = dimming_curve(up, weights)
     stable_lit = [row for row in curve_d + curve_u if row["stable"] and row["light_fraction"] > LIT_FRACTION]
     details = {"down": curve_d, "up": curve_u}
+    trips = protection_summary(circuit, list(down) + list(up))
+    if trips is not None:
+        details["protection_trips"] = True
+    # Engineering choice: protection acting at half the settings or more leaves no
+    # dimming range worth the name; at fewer, the range is judged on the rest, with a caution.
+    if trips is not None and trips[1] >= 0.5:
+        return _res("dimming-range", Status.FAIL, None, 100 * DIM_TARGET_LOW, "%", None,
+                    trips[0] + "; there is no usable dimming range.",
+                    remedy="Fewer capacitor-input lamps on this dimmer, or a dimmer with a higher rating (and trip level).",
+                    sources=("LRC_ASSIST_DIMMING",), details=details)
     if not stable_lit:
+        why = ("See latching and holding: the dimmer does not work with this load." if circuit.dimmer.edge is Edge.LEADING
+               else "The lamps do not run steadily on this dimmer at any setting: try a leading-edge dimmer or other lamps.")
         return _res("dimming-range", Status.FAIL, 0.0, 100 * DIM_TARGET_LOW, "%", None,
                     "There is no setting at which the lamps give steady light.",
-                    remedy="See latching and holding: the dimmer does not work with this load.",
-                    sources=("LRC_ASSIST_DIMMING",), details=details)
+                    remedy=why, sources=("LRC_ASSIST_DIMMING",), details=details)
     low = min(stable_lit, key=lambda row: row["light_fraction"])
     high = max(stable_lit, key=lambda row: row["light_fraction"])
     # drop-out: the first setting in the down sweep at which the lamps go dark after being lit
@@ -747,6 +794,9 @@ def check_dimming_range(circuit: Circuit, down: Sequence[SettingRun], up: Sequen
     lowv = low["light_fraction"]
     m = _margin(lowv, DIM_TARGET_LOW)
     problems = []
+    if trips is not None:
+        msg = trips[0] + ". Elsewhere " + msg[0].lower() + msg[1:]
+        problems.append("the protection trips at some settings")
     if lowv > DIM_TARGET_LOW:
         problems.append("they do not dim to 5 %")
     if high["light_fraction"] < DIM_TARGET_HIGH:

@@ -20,6 +20,7 @@ from __future__ import annotations
 
 import argparse
 import csv
+import dataclasses
 import json
 import math
 import sys
@@ -100,10 +101,14 @@ def _check_and_print(circuit, *, as_json: bool = False, as_markdown: bool = Fals
 
 
 def _json_default(obj):
+    """Arrays as lists, enums as their file strings, parameter records (a proposed
+    load-correction device) as tables of their fields in SI units."""
     if hasattr(obj, "tolist"):
         return obj.tolist()
     if hasattr(obj, "value"):
         return obj.value
+    if dataclasses.is_dataclass(obj) and not isinstance(obj, type):
+        return {f.name: getattr(obj, f.name) for f in dataclasses.fields(obj)}
     raise TypeError(f"not JSON serialisable: {type(obj).__name__}")
 
 

@@ -176,31 +176,97 @@ def harmonics_run(circuit: Circuit, runs, sim) -> SettingRun | None:
                       point=r.point)
 
 
+# The checks judged on the sweep's settings, which a low-end trim can confine to the
+# settings above it.
+SWEEP_CHECKS = ("latching", "holding", "repetitive-peak", "dc-offset", "turn-off-surge", "dimming-range", "flicker",
+                "dissipation")
+# Engineering choice: a trim that must sit above half the knob's travel leaves too little
+# range to call the failure a trim matter.
+TRIM_MAX_SETTING = 0.5
+
+
+def _sweep_checks(c: Circuit, down, up, w) -> dict[str, CheckResult]:
+    runs = tuple(down) + tuple(up)
+    return {"latching": ck.check_latching(c, runs, w), "holding": ck.check_holding(c, runs, w),
+            "repetitive-peak": ck.check_repetitive_peak(c, runs), "dc-offset": ck.check_dc_offset(c, runs),
+            "turn-off-surge": ck.check_turn_off_surge(c, runs),
+            "dimming-range": ck.check_dimming_range(c, down, up, w), "flicker": ck.check_flicker(c, runs, w),
+            "dissipation": ck.check_dissipation(c, runs)}
+
+
+def usable_from(ev: Evidence, full: dict[str, CheckResult]) -> tuple[float, dict[str, CheckResult]] | None:
+    """Where sweep checks fail only at the bottom of the travel: the lowest setting from
+    which every sweep check passes or cautions, with the checks judged on the settings
+    from there up; None if they fail higher up than ``TRIM_MAX_SETTING`` or not at all."""
+    if not any(r.status is Status.FAIL for r in full.values()):
+        return None
+    for s in sorted({r.setting for r in ev.down}):
+        if s <= 0.0:
+            continue
+        if s > TRIM_MAX_SETTING + 1e-9:
+            return None
+        down = tuple(r for r in ev.down if r.setting >= s - 1e-9)
+        up = tuple(r for r in ev.up if r.setting >= s - 1e-9)
+        above = _sweep_checks(ev.circuit, down, up, ev.light_weights)
+        if not any(r.status is Status.FAIL for r in above.values()):
+            return s, above
+    return None
+
+
+def _bottom_of_travel(ev: Evidence, full: dict[str, CheckResult]) -> dict[str, CheckResult]:
+    """Failures confined to the bottom of the knob's travel: with a low-end trim, a
+    caution that gives the trim setting; without one, the failure says where the
+    usable range ends."""
+    found = usable_from(ev, full)
+    if found is None:
+        return full
+    s, above = found
+    row = next((r.point for r in ev.down if abs(r.setting - s) < 1e-9 and r.point is not None), None)
+    angle = (f" (firing angle about {row.firing_angle_deg:.0f}°)"
+             if row is not None and np.isfinite(row.firing_angle_deg) else "")
+    out = dict(full)
+    for cid, res in full.items():
+        if res.status is not Status.FAIL:
+            continue
+        details = dict(res.details, usable_from_setting=s)
+        if ev.circuit.dimmer.low_end_trim:
+            kept = above[cid]
+            out[cid] = dataclasses.replace(
+                kept, status=Status.CAUTION if kept.status is Status.PASS else kept.status,
+                message=(f"Below setting {s:.2f} only: {res.message} Set the dimmer's low-end trim to setting "
+                         f"{s:.2f}{angle} and it works over the rest of the travel."),
+                remedy=f"Set the low-end trim to setting {s:.2f}{angle}.", details=details)
+        else:
+            out[cid] = dataclasses.replace(
+                res, message=res.message + f" It works from setting {s:.2f} up: the usable range ends there.",
+                remedy=(res.remedy + " " if res.remedy else "") + f"Or a dimmer with a low-end trim, set to {s:.2f}.",
+                details=details)
+    return out
+
+
 def judge(ev: Evidence, *, breaker_counts: dict[str, int] | None = None) -> list[CheckResult]:
     """All checks, in ``checks.CHECK_IDS`` order."""
     c, w = ev.circuit, ev.light_weights
-    runs = ev.runs
-    latching = ck.check_latching(c, runs, w)
-    holding = ck.check_holding(c, runs, w)
+    sweep = _bottom_of_travel(ev, _sweep_checks(c, ev.down, ev.up, w))
     off = ck.check_off_state(c, ev.off, OFF_ANALYSED_CYCLES)
-    simulated = {"latching": latching.status, "holding": holding.status, "off-state": off.status}
+    simulated = {"latching": sweep["latching"].status, "holding": sweep["holding"].status, "off-state": off.status}
     out = [
         ck.check_rating(c),
         ck.check_minimum_load(c, simulated),
         ck.check_edge_match(c),
         ck.check_dimmable(c),
-        latching,
-        holding,
-        ck.check_repetitive_peak(c, runs),
+        sweep["latching"],
+        sweep["holding"],
+        sweep["repetitive-peak"],
         ck.check_inrush(c, ev.inrush),
         ck.check_breaker(c, ev.inrush, breaker_counts),
         off,
-        ck.check_dc_offset(c, runs),
-        ck.check_turn_off_surge(c, runs),
-        ck.check_dimming_range(c, ev.down, ev.up, w),
-        ck.check_flicker(c, runs, w),
-        ck.check_harmonics(c, ev.harmonics or runs),
-        ck.check_dissipation(c, runs),
+        sweep["dc-offset"],
+        sweep["turn-off-surge"],
+        sweep["dimming-range"],
+        sweep["flicker"],
+        ck.check_harmonics(c, ev.harmonics or ev.runs),
+        sweep["dissipation"],
     ]
     assert tuple(r.id for r in out) == ck.CHECK_IDS
     return out
@@ -224,7 +290,10 @@ _PART = re.compile(r"([A-Za-z_]\w*)(?:\[(\d+)\])?")
 
 
 def set_path(obj, path: str, value):
-    """A copy of a frozen dataclass tree with the field at a dotted path (``loads[1].x``) set."""
+    """A copy of a frozen dataclass tree with the field at a dotted path (``loads[1].x``) set.
+
+    Indices count as the circuit file does, from 1 (``loads[1]`` is the first group),
+    so a ``Range`` read from a file names the group it came from."""
     head, _, rest = path.partition(".")
     m = _PART.fullmatch(head)
     if m is None or not dataclasses.is_dataclass(obj) or not hasattr(obj, m.group(1)):
@@ -233,9 +302,9 @@ def set_path(obj, path: str, value):
     cur = getattr(obj, name)
     if idx is not None:
         seq = list(cur)
-        i = int(idx)
+        i = int(idx) - 1
         if not 0 <= i < len(seq):
-            raise InputError(f"index {i} is out of range", key=path)
+            raise InputError(f"there is no {name}[{idx}] (the file has {len(seq)})", key=path)
         seq[i] = set_path(seq[i], rest, value) if rest else _like(seq[i], value)
         new = tuple(seq)
     else:

@@ -29,6 +29,10 @@ set angle whatever the current, ramping its current linearly to zero over
 the dimmer voltage up, to the clamp (V_clamp) if need be.  A current above ``trip_current_a``
 turns the switch off for the rest of the half-cycle, by the same ramp.
 
+``low_end_trim``: the dimmer has a preset with which the installer raises the light at
+the bottom of the knob's travel; failures confined to settings below some point then
+become a matter of setting the trim, not of the dimmer.
+
 Two-wire dimmers draw their own supply (``self_supply_a``) through the load while the
 switch is off.
 """
@@ -128,6 +132,8 @@ class Dimmer:
     # phase control
     min_firing_angle_deg: float = 20.0
     max_firing_angle_deg: float = 160.0
+    # an installer-set low-end trim (a preset that raises the knob's lowest position)
+    low_end_trim: bool = False
     rc_diac: RcDiac | None = field(default_factory=RcDiac)
 
     def __post_init__(self) -> None:

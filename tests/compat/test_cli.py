@@ -262,3 +262,38 @@ def test_simulate_textbook_resistive_example(capsys):
     assert doc["power_w"] == pytest.approx(720.0, rel=0.01)
     fired = [a for a in doc["firing_angle_deg"] if a is not None]
     assert fired and all(abs(a - 90.0) < 1.0 for a in fired)     # 1°: one sample step is 0.9°
+
+
+CIRCUITS = sorted(DATA.glob("*.toml"))
+
+
+def _demo_file(tmp_path) -> Path:
+    p = tmp_path / "demo.toml"
+    p.write_text(catalogue.demo_text())
+    return p
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("command", [["check", "--json"], ["simulate", "--json", "--cycles", "2"],
+                                     ["sweep", "--json", "--points", "5"]], ids=lambda c: c[0])
+def test_every_json_command_parses_on_the_demo_and_test_circuits(command, tmp_path, capsys):
+    # our own interface: whatever the verdict, --json prints one JSON document and no traceback
+    for path in CIRCUITS + [_demo_file(tmp_path)]:
+        code = cli.main([command[0], str(path), *command[1:]])
+        out = capsys.readouterr()
+        assert code in (0, 1), (path, out.err)
+        assert "Traceback" not in out.err
+        doc = json.loads(out.out)
+        assert doc["schema"] == 1 if "schema" in doc else isinstance(doc, dict)
+
+
+@pytest.mark.slow
+def test_size_json_parses_when_it_proposes_a_correction_device(tmp_path, capsys):
+    # the demo fails at the low end and `size` proposes a load-correction device: its
+    # JSON used to end in "not JSON serialisable"
+    assert cli.main(["size", str(_demo_file(tmp_path)), "--json"]) == 0
+    out = capsys.readouterr()
+    doc = json.loads(out.out)
+    dev = doc["correction"]["device"]
+    assert dev["series_capacitance_f"] == doc["correction"]["capacitance_f"] > 0
+    assert "Traceback" not in out.err

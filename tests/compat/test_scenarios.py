@@ -113,8 +113,8 @@ def test_range_straddling_pass_and_fail_needs_a_site_test():
     # minimum, four are above it.  The verdict must ask for a site test and name the input.
     lamp = Filament(name="25 W lamp", count=2, rated_power_w=25.0)
     c = Circuit(dimmer=PHASE_LEADING, loads=(lamp,),
-                ranges=(Range(path="loads[0].count", file_key="loads[0].count", low=1, high=4),))
+                ranges=(Range(path="loads[1].count", file_key="loads[1].count", low=1, high=4),))
     rep = evaluate(c)
     m = by_id(rep)["minimum-load"]
-    assert m.status is Status.FAIL and m.deciding_input == "loads[0].count"
+    assert m.status is Status.FAIL and m.deciding_input == "loads[1].count"
     assert rep.verdict is Verdict.SITE_TEST_NEEDED

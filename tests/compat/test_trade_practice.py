@@ -176,7 +176,6 @@ def _bottom_only_failures():
     return down, up
 
 
-@PENDING
 @pytest.mark.analytic
 @pytest.mark.parametrize("trim", [True, False])
 def test_failures_only_below_a_setting_are_a_trim_matter(trim):
@@ -199,7 +198,6 @@ def test_failures_only_below_a_setting_are_a_trim_matter(trim):
 
 # ---------------------------------------------------------------- protection trips
 
-@PENDING
 @pytest.mark.slow
 def test_dimmer_protection_tripping_is_reported_as_a_shutdown():
     # common practice, no source: a transistor dimmer whose over-current protection

@@ -43,13 +43,16 @@ def test_combine_takes_worst_case_and_names_the_deciding_input():
 @pytest.mark.analytic
 def test_set_path():
     c = Circuit(loads=(Filament(name="f", count=2), ElectronicDriver(name="d", count=3)))
-    c2 = set_path(c, "loads[1].input_capacitance_f", 1e-7)
+    # indices count from 1, as in the file and its messages
+    c2 = set_path(c, "loads[2].input_capacitance_f", 1e-7)
     assert c2.loads[1].input_capacitance_f == 1e-7 and c.loads[1].input_capacitance_f != 1e-7
-    assert set_path(c, "loads[0].count", 3.4).loads[0].count == 3
+    assert set_path(c, "loads[1].count", 3.4).loads[0].count == 3
     assert set_path(c, "supply.source_resistance_ohm", 1.5).supply.source_resistance_ohm == 1.5
     assert set_path(c, "dimmer.rc_diac.breakover_v", 30.0).dimmer.rc_diac.breakover_v == 30.0
     with pytest.raises(InputError):
         set_path(c, "loads[5].count", 1)
+    with pytest.raises(InputError):
+        set_path(c, "loads[0].count", 1)
     with pytest.raises(InputError):
         set_path(c, "nothing.here", 1)
 
@@ -62,3 +65,42 @@ def test_cautions_cover_design_points():
                    "differential probes", "isolated supply"):
         assert needle in text, needle
     assert attached_cautions() == cautions()
+
+
+def test_a_range_read_from_a_file_is_applied_to_its_own_group(tmp_path):
+    # a range on the second group's input capacitance must reach the second group
+    # (the file numbers groups from 1); it used to land on the other group or fail
+    from loads.files import read_circuit
+    p = tmp_path / "two.toml"
+    p.write_text('''schema = 1
+[supply]
+voltage_v = 230.0
+frequency_hz = 50.0
+[dimmer]
+edge = "leading"
+wiring = "with-neutral"
+control = "phase"
+rated_load_w = 400.0
+min_load_w = 0.0
+[[loads]]
+name = "lamp"
+kind = "filament"
+count = 1
+rated_power_w = 60.0
+rated_voltage_v = 230.0
+[[loads]]
+name = "led"
+kind = "electronic-driver"
+count = 2
+rated_power_w = 6.0
+rated_voltage_v = 230.0
+input_capacitance_nf = { min = 22.0, max = 100.0 }
+''')
+    c = read_circuit(p)
+    (rg,) = c.ranges
+    lo = set_path(c, rg.path, rg.low)
+    hi = set_path(c, rg.path, rg.high)
+    # rel 1e-12: exact unit conversion nF → F
+    assert lo.loads[1].input_capacitance_f == pytest.approx(22e-9, rel=1e-12)
+    assert hi.loads[1].input_capacitance_f == pytest.approx(100e-9, rel=1e-12)
+    assert lo.loads[0] == c.loads[0] and hi.loads[0] == c.loads[0]
