@@ -9,9 +9,10 @@ Expected verdicts, written down before these were run, with their basis:
   stroboscopic caution; never a failure (common practice, no source: the recommended
   pairing; bulk-capacitor ripple at twice mains frequency is not visible flicker);
 * the demo circuit (two-wire rc-diac dimmer, halogen and LED lamps without a bleeder),
-  whose switch misfires at some settings in a pattern repeating every three half-cycles
-  (16.7 Hz at 50 Hz): flicker fails there (issue 8 item 7: an LED lamp misfiring at
-  17 Hz must fail; IEEE 1789's low-risk line is 0.025·f % below 90 Hz).
+  whose switch misfires at some settings: a misfire that does not repeat within the
+  three analysed cycles modulates the light at the span's lowest frequency, 16.7 Hz:
+  flicker fails there (issue 8 item 7: an LED lamp misfiring at 17 Hz must fail;
+  IEEE 1789's low-risk line is 0.025·f % below 90 Hz).
 """
 import pytest
 
@@ -65,7 +66,7 @@ def test_demo_misfiring_fails_flicker_at_17_hz_and_holding_does_not_fail():
     w = ev.light_weights
     r = ck.check_flicker(c, ev.runs, w)
     assert r.status is Status.FAIL
-    # a pattern repeating every three half-cycles: 50/3 Hz (atol: one FFT bin over 3 cycles)
+    # the lowest frequency of the three analysed cycles, 50/3 Hz (atol: a third of a bin)
     assert r.details["deciding_hz"] == pytest.approx(50.0 / 3.0, abs=0.5)
     # regression (our own output, issue 8 item 7): with the triac's turn-off time the
     # ring troughs no longer end conduction; what remains are commutations the slow ring
