@@ -15,8 +15,9 @@ unverified): low risk when the modulation % is below 0.025·f under 90 Hz and be
 Stroboscopic visibility measure SVM, CIE TN 006:2016 (CIE_TN006_2016; the formula and
 constants from memory, unverified against the printed note — a public summary confirms
 the Minkowski form, that SVM = 1 is the visibility threshold of an average observer and
-that the measure covers roughly 80 Hz–2 kHz; Perz et al., J. Opt. Soc. Am. A 35(2),
-309 (2018), validated it):
+that the measure covers roughly 80 Hz–2 kHz; "Stroboscopic effect: contrast threshold
+function and dependence on illumination level", J. Opt. Soc. Am. A 35(2), 309 (2018),
+validated it):
 
     SVM = (Σ_m (C_m / T(f_m))^3.7)^(1/3.7)      over the components f_m ≤ 2 kHz,
     T(f) = 1/(1 + exp(−0.00518·(f − 306.6))) + 20·exp(−f/10),

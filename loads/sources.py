@@ -170,7 +170,7 @@ SOURCES: dict[str, Source] = {
         locator="stroboscopic visibility measure SVM: Minkowski sum (exponent 3.7) of the Fourier "
                 "components over the threshold curve T(f)",
         note="formula and constants from memory, unverified (a public summary confirms the Minkowski "
-             "form and SVM = 1 at the visibility threshold; validated in Perz et al., J. Opt. Soc. Am. A "
+             "form and SVM = 1 at the visibility threshold; validated in J. Opt. Soc. Am. A "
              "35(2), 309, 2018); the EU ecodesign cap SVM ≤ 0.4 (Regulation (EU) 2019/2020) also from memory",
     ),
     "LRC_ASSIST_DIMMING": Source(
