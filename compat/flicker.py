@@ -12,6 +12,24 @@ unverified): low risk when the modulation % is below 0.025·f under 90 Hz and be
 0.0333·f from 90 to 3000 Hz (no limit above 3000 Hz) and, under 90 Hz, below 0.01·f
 (that last figure is not in REFERENCES: from memory, unverified).
 
+Stroboscopic visibility measure SVM, CIE TN 006:2016 (CIE_TN006_2016; the formula and
+constants from memory, unverified against the printed note — a public summary confirms
+the Minkowski form, that SVM = 1 is the visibility threshold of an average observer and
+that the measure covers roughly 80 Hz–2 kHz; "Stroboscopic effect: contrast threshold
+function and dependence on illumination level", J. Opt. Soc. Am. A 35(2), 309 (2018),
+validated it):
+
+    SVM = (Σ_m (C_m / T(f_m))^3.7)^(1/3.7)      over the components f_m ≤ 2 kHz,
+    T(f) = 1/(1 + exp(−0.00518·(f − 306.6))) + 20·exp(−f/10),
+
+C_m being the m-th Fourier component's amplitude relative to the mean light.  T(f) is
+the threshold modulation of the stroboscopic effect at frequency f (about 0.26 at
+100 Hz, 0.5 at 307 Hz, 1 towards 2 kHz); its second term lifts it steeply below
+~80 Hz, where SVM does not apply (there the light flickers visibly; IEC TR 61547-1's
+PstLM judges that, and is beyond this module).  The EU ecodesign rules for mains light
+sources (Regulation (EU) 2019/2020, Annex II; from memory) cap SVM at 0.4 for LED
+light sources at full load: a product requirement on a lamp, well below the threshold.
+
 A dimmer that misfires modulates light at a fraction of the mains frequency, so the
 waveform is analysed over several mains cycles: the spectrum of the light gives each
 component's modulation (a component of amplitude A on a mean m modulates by 100·A/m %)
@@ -97,11 +115,38 @@ def dominant_frequency_hz(light, sample_rate_hz: float) -> float:
     return float(f[int(np.argmax(mod))])
 
 
+# CIE TN 006:2016 (from memory, see the module docstring)
+SVM_EXPONENT = 3.7
+SVM_SLOPE_PER_HZ = 0.00518
+SVM_MID_HZ = 306.6
+SVM_MAX_HZ = 2000.0
+# CIE TN 006:2016: SVM = 1 is the threshold of visibility for an average observer
+SVM_VISIBLE = 1.0
+
+
+def svm_threshold(frequency_hz: float) -> float:
+    """Stroboscopic-effect threshold modulation T(f) of CIE TN 006 [1] at f [Hz]."""
+    f = float(frequency_hz)
+    return 1.0 / (1.0 + math.exp(-SVM_SLOPE_PER_HZ * (f - SVM_MID_HZ))) + 20.0 * math.exp(-f / 10.0)
+
+
+def stroboscopic_visibility(light, sample_rate_hz: float) -> float:
+    """SVM of a light waveform [1] sampled uniformly at sample_rate_hz [Hz] over whole
+    periods (CIE TN 006, see the module docstring); steady or dark light gives 0."""
+    f, mod = modulation_spectrum(light, sample_rate_hz)
+    keep = (f > 0.0) & (f <= SVM_MAX_HZ) & (mod > _NOISE_PCT)
+    if not np.any(keep):
+        return 0.0
+    ratio = (mod[keep] / 100.0) / np.array([svm_threshold(x) for x in f[keep]])
+    return float(np.sum(ratio ** SVM_EXPONENT) ** (1.0 / SVM_EXPONENT))
+
+
 @dataclass(frozen=True, slots=True, kw_only=True)
 class FlickerAssessment:
     """percent_flicker [%]; flicker_index [1]; dominant_hz [Hz];
     low_risk_ratio: the worst of modulation/low-risk limit over the overall percent
     flicker at the dominant frequency and every spectral component [1] (≤ 1: low risk);
+    svm: CIE TN 006 stroboscopic visibility measure of the same light [1];
     no_effect_ratio: the same against the no-observable-effect line [1];
     deciding_hz: the frequency that gave low_risk_ratio [Hz]; band: the risk band."""
 
@@ -112,6 +157,7 @@ class FlickerAssessment:
     no_effect_ratio: float
     deciding_hz: float
     band: RiskBand
+    svm: float = 0.0
 
 
 # Engineering choice: spectral components below this modulation are numerical noise.
@@ -178,4 +224,5 @@ def assess(light, sample_rate_hz: float, *, drift_period_samples: int | None = N
     ne, _ = worst(ieee1789_no_effect_pct)
     band = RiskBand.NO_EFFECT if ne <= 1.0 else (RiskBand.LOW_RISK if lr <= 1.0 else RiskBand.ELEVATED)
     return FlickerAssessment(percent_flicker=pf, flicker_index=fi, dominant_hz=dom, low_risk_ratio=lr,
-                             no_effect_ratio=ne, deciding_hz=lr_f, band=band)
+                             no_effect_ratio=ne, deciding_hz=lr_f, band=band,
+                             svm=stroboscopic_visibility(light, sample_rate_hz))

@@ -7,6 +7,9 @@ the current falls below the holding current I_H (BIB_TEXTBOOK_TRIAC).  The on-st
 drop is V_T + r_T·i.  A current that sweeps through the holding level faster than the
 commutating dI/dt (a ring of input capacitors with the line inductance) does not turn
 the triac off: it goes on conducting until the current settles in either direction.
+Nor does a dip below I_H shorter than the triac's turn-off time ``triac_turn_off_time_s``
+(a ring trough that does not reach zero): the triac turns off only once its current has
+stayed below I_H for that time, or has reached zero.
 A series choke L_c limits di/dt; a snubber R–C sits across the dimmer.
 
 Control:
@@ -120,6 +123,9 @@ class Dimmer:
     repetitive_peak_a: float = 20.0           # common practice, no source
     commutating_di_dt_a_per_s: float = 10e3   # common practice, no source: triacs commutate a current
                                               # falling at up to a few to tens of A/ms (0: always)
+    triac_turn_off_time_s: float = 20e-6      # common practice, from memory: a triac's commutated turn-off
+                                              # time t_q is some tens of µs; a dip below I_H shorter than it
+                                              # does not turn the triac off (0: it turns off at once)
     choke_inductance_h: float = 60e-6         # REFERENCES: 40–100 µH chokes [trade]
     snubber_capacitance_f: float = 0.0
     snubber_resistance_ohm: float = 100.0     # common practice, no source
@@ -163,6 +169,8 @@ class Dimmer:
         require(self.commutating_di_dt_a_per_s >= 0, "commutating_di_dt_a_per_s", self.commutating_di_dt_a_per_s,
                 "A/s must not be negative")
         require(0 <= self.turn_off_time_s <= 1e-3, "turn_off_time_s", self.turn_off_time_s, "s must be 0–1 ms")
+        require(0 <= self.triac_turn_off_time_s <= 1e-3, "triac_turn_off_time_s", self.triac_turn_off_time_s,
+                "s must be 0–1 ms")
         for name in ("choke_inductance_h", "snubber_capacitance_f", "self_supply_a"):
             require(getattr(self, name) >= 0, name, getattr(self, name), "must not be negative")
         require(0 <= self.min_firing_angle_deg < self.max_firing_angle_deg <= 180, "min_firing_angle_deg",

@@ -85,6 +85,7 @@ _FILE_UNIT: dict[str, str] = {
     "timing_capacitance_f": "nf",
     "snubber_capacitance_f": "nf",
     "turn_off_time_s": "us",
+    "triac_turn_off_time_s": "us",
     "commutating_di_dt_a_per_s": "a_per_ms",
     "input_capacitance_f": "nf",
     "parallel_capacitance_f": "nf",

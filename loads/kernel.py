@@ -59,7 +59,7 @@ N_CORE = 7
 # --- circuit parameters P[...] -----------------------------------------------------
 (VPK, OMEGA, RS, LS, CB, LC, RON, VTD, IH, ILATCH, IGT, GATEW, RSN, CSN, RT, CT,
  VBOP, VBON, VONP, VONN, RG, IDOFF, ISS, VCL, RCL, TRIP, ALPHA, GLEAK, HMAX, RTOL,
- EVTOL, EARLY, TRAMP, CW, RW, DIDTC, N_P) = range(37)
+ EVTOL, EARLY, TRAMP, CW, RW, DIDTC, TQ, N_P) = range(38)
 
 # --- integer parameters IP[...] ----------------------------------------------------
 EDGE, CONTROL, NOFIRE, NG, NY, N_IP = range(6)
@@ -71,7 +71,7 @@ SW_ON, GATE, LATCHED, DIAC_ON, DIAC_POL, CLAMP, HCIDX, FIRE_HC, TRIPPED, CPOL, N
 # followed by one mode per group
 
 # --- discrete state Q[...] (floats) ------------------------------------------------
-GATE_END, T_FIRE, T_OFF, HC_START, RAMP_I0, T_RAMP_END, DIDT, N_Q = range(8)
+GATE_END, T_FIRE, T_OFF, HC_START, RAMP_I0, T_RAMP_END, DIDT, T_DIP, T_DIP_END, N_Q = range(10)
 # followed by four per group: (level, t_up, t_down, sense state) – see _sense_edges
 
 # --- half-cycle record columns -------------------------------------------------------
@@ -85,6 +85,7 @@ O_E, O_VB, O_IL, O_ISW, O_VD, O_VT, N_O0 = range(7)
 K_FILAMENT, K_MAGNETIC, K_DRIVER, K_ETRANS, K_LINEAR = range(5)
 RAMPING = 2          # S[SW_ON] while a trailing-edge switch ramps its current down
 CARRIED = 2          # S[LATCHED]: conducting on through a failed commutation
+DIPPING = 3          # S[LATCHED]: below I_H for less than the turn-off time, still conducting
 
 GAMMA = 2.0 - math.sqrt(2.0)
 D_COEF = GAMMA / 2.0
@@ -296,6 +297,10 @@ def guards(y, P, IP, S, gk, gxo, gpo, gnp, GP, g):
                 k += 1
             if S[GATE] == 0 and S[LATCHED] != 0:
                 g[k] = ic - P[IH]
+                k += 1
+            if S[LATCHED] == DIPPING:
+                # a dip below I_H ends where the current reaches zero (or at the turn-off time)
+                g[k] = ic
                 k += 1
             if S[LATCHED] == CARRIED:
                 g[k] = -ic - P[IH]
@@ -644,6 +649,8 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                         if S[SW_ON] == 0:
                             S[SW_ON] = 1
                             S[LATCHED] = 0
+                        elif S[LATCHED] == DIPPING:
+                            S[LATCHED] = 1     # gated again during a dip: it conducts on
                         _record_firing(t, S, Q, HC, P)
             if S[SW_ON] != 0:
                 if S[GATE] != 0 and S[LATCHED] == 0 and abs(y[ISW]) >= P[ILATCH]:
@@ -668,12 +675,43 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                             S[LATCHED] = 1
                             S[CPOL] = -S[CPOL]
                             changed = True
+                    elif S[LATCHED] == DIPPING:
+                        # below I_H since Q[T_DIP]: back above it within the turn-off time,
+                        # the dip did not end conduction; at zero current or once the
+                        # turn-off time has passed, it did (from the dip's start)
+                        ic = S[CPOL] * y[ISW]
+                        if ic >= P[IH]:
+                            S[LATCHED] = 1
+                            f = S[FIRE_HC]
+                            if 0 <= f < HC.shape[0]:
+                                HC[f, H_EXT] = np.nan      # the conduction goes on
+                            changed = True
+                        elif ic <= 0.0 and abs(Q[DIDT]) > P[DIDTC]:
+                            S[LATCHED] = CARRIED
+                            S[CPOL] = -S[CPOL]
+                            changed = True
+                        elif ic <= 0.0 or t >= Q[T_DIP_END] - 1e-12:
+                            Q[T_DIP_END] = np.inf
+                            _chop_loads(y, y[ISW], IP, gk, gxo, gpo, gnp, gn, GP)
+                            _record_off(Q[T_DIP], S, Q, HC, P, True, y, True)
+                            changed = True
                     elif S[CPOL] * y[ISW] < P[IH]:
                         if abs(Q[DIDT]) > P[DIDTC]:
                             # the current sweeps through zero faster than the switch can
                             # recover (commutating dI/dt): it goes on conducting
                             S[LATCHED] = CARRIED
                             S[CPOL] = -S[CPOL]
+                            changed = True
+                        elif P[TQ] > 0.0 and S[CPOL] * y[ISW] > 0.0:
+                            # a triac turns off only once its current has stayed below I_H
+                            # for its turn-off time: until then it goes on conducting
+                            S[LATCHED] = DIPPING
+                            Q[T_DIP] = t
+                            Q[T_DIP_END] = t + P[TQ]
+                            f = S[FIRE_HC]
+                            if 0 <= f < HC.shape[0]:
+                                # where it ends if the dip lasts (a run may end first)
+                                HC[f, H_EXT] = _angle_deg(t, HC[f, H_START], P)
                             changed = True
                         else:
                             _chop_loads(y, y[ISW], IP, gk, gxo, gpo, gnp, gn, GP)
@@ -946,6 +984,8 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             t_ev = min(t_ev, Q[T_OFF])
         if S[SW_ON] == RAMPING:
             t_ev = min(t_ev, Q[T_RAMP_END])
+        if S[LATCHED] == DIPPING and Q[T_DIP_END] > t:
+            t_ev = min(t_ev, Q[T_DIP_END])
         h = min(h, P[HMAX], t_ev - t)
         if h < 1e-13:
             h = t_ev - t
@@ -1113,6 +1153,9 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             Q[T_RAMP_END] = np.inf
             _record_off(t - 0.5 * P[TRAMP], S, Q, HC, P, False, y, False)
             event = True
+            timed = True
+        if S[LATCHED] == DIPPING and abs(t - Q[T_DIP_END]) < 1e-12:
+            event = True           # the dip has lasted the turn-off time (see update_modes)
             timed = True
         if abs(t - t_hb) < 1e-12:
             _end_half_cycle(t, P, IP, S, Q, gk, gpo, gnp, GP)

@@ -305,6 +305,7 @@ def pack(circuit: Circuit, *, setting: float | None, firing_angle_deg: float | N
     P[K.EARLY] = EARLY_DROPOUT_DEG
     P[K.TRAMP] = dim.turn_off_time_s if dim.edge is Edge.TRAILING else 0.0
     P[K.DIDTC] = dim.commutating_di_dt_a_per_s if dim.commutating_di_dt_a_per_s > 0 else np.inf
+    P[K.TQ] = dim.triac_turn_off_time_s if dim.edge is Edge.LEADING else 0.0
 
     gk, gxo, gpo, gnp, gn, chunks = [], [], [], [], [], []
     xo, po = K.N_CORE, 0

@@ -162,6 +162,17 @@ SOURCES: dict[str, Source] = {
         locator="low-risk and no-observable-effect regions of modulation vs frequency",
         note="region boundaries from memory, unverified",
     ),
+    "CIE_TN006_2016": Source(
+        authors="CIE",
+        title="Visual Aspects of Time-Modulated Lighting Systems – Definitions and Measurement Models",
+        edition="CIE TN 006:2016",
+        year=2016,
+        locator="stroboscopic visibility measure SVM: Minkowski sum (exponent 3.7) of the Fourier "
+                "components over the threshold curve T(f)",
+        note="formula and constants from memory, unverified (a public summary confirms the Minkowski "
+             "form and SVM = 1 at the visibility threshold; validated in J. Opt. Soc. Am. A "
+             "35(2), 309, 2018); the EU ecodesign cap SVM ≤ 0.4 (Regulation (EU) 2019/2020) also from memory",
+    ),
     "LRC_ASSIST_DIMMING": Source(
         authors="Lighting Research Center, Rensselaer Polytechnic Institute (ASSIST)",
         title="ASSIST recommends: recommendation on lamp dimming performance",

@@ -6,7 +6,8 @@ import numpy as np
 import pytest
 
 from compat.flicker import (RiskBand, assess, dominant_frequency_hz, flicker_index, ieee1789_low_risk_pct,
-                            ieee1789_no_effect_pct, modulation_spectrum, percent_flicker, remove_drift)
+                            ieee1789_no_effect_pct, modulation_spectrum, percent_flicker, remove_drift,
+                            stroboscopic_visibility, svm_threshold)
 
 FS = 50.0 * 2000          # 2000 samples per 50 Hz cycle
 
@@ -135,3 +136,50 @@ def test_min_frequency_ignores_slow_content():
     assert assess(x, FS).band is RiskBand.ELEVATED
     a = assess(x, FS, min_frequency_hz=49.5)
     assert a.band is RiskBand.NO_EFFECT and a.dominant_hz == pytest.approx(100.0)
+
+
+# ---------------------------------------------------------------- SVM (CIE TN 006)
+
+@pytest.mark.published
+def test_svm_threshold_curve():
+    # CIE TN 006:2016 (formula and constants from memory, unverified):
+    # T(f) = 1/(1 + exp(−0.00518·(f − 306.6))) + 20·exp(−f/10).  Its logistic part is
+    # one half at its midpoint 306.6 Hz and tends to 1 (100 % modulation just visible)
+    # towards 2 kHz; the second term lifts it steeply below ~50 Hz.
+    assert svm_threshold(306.6) == pytest.approx(0.5, abs=1e-12)
+    assert svm_threshold(100.0) == pytest.approx(1 / (1 + math.exp(0.00518 * 206.6)) + 20 * math.exp(-10.0), rel=1e-12)
+    assert 0.25 < svm_threshold(100.0) < 0.26 and svm_threshold(120.0) < svm_threshold(100.0) * 1.2
+    assert svm_threshold(2000.0) == pytest.approx(1.0, abs=2e-4)
+    assert svm_threshold(17.0) > 3.0          # at a misfire's 17 Hz SVM hardly counts (that is flicker)
+
+
+@pytest.mark.analytic
+@pytest.mark.parametrize("f,m", [(100.0, 0.05), (100.0, 0.3), (150.0, 0.2), (300.0, 0.5), (1000.0, 0.8)])
+def test_svm_of_a_sine_modulation(f, m):
+    # one component: the Minkowski sum is that component's C/T(f)
+    t = t_axis(cycles=6)
+    x = 1.0 + m * np.sin(2 * math.pi * f * t)
+    assert stroboscopic_visibility(x, FS) == pytest.approx(m / svm_threshold(f), rel=1e-9)   # exact DFT bins
+
+
+@pytest.mark.analytic
+def test_svm_minkowski_sum_and_band():
+    t = t_axis(cycles=6)
+    x = 2.0 + 0.2 * np.sin(2 * math.pi * 100.0 * t) + 0.6 * np.cos(2 * math.pi * 400.0 * t)
+    a, b = 0.1 / svm_threshold(100.0), 0.3 / svm_threshold(400.0)
+    assert stroboscopic_visibility(x, FS) == pytest.approx((a ** 3.7 + b ** 3.7) ** (1 / 3.7), rel=1e-9)
+    # components above 2 kHz are not counted
+    assert stroboscopic_visibility(1.0 + 0.5 * np.sin(2 * math.pi * 2500.0 * t), FS) == 0.0
+    assert stroboscopic_visibility(np.ones(1000), FS) == 0.0 and stroboscopic_visibility(np.zeros(1000), FS) == 0.0
+
+
+@pytest.mark.analytic
+def test_svm_of_a_square_wave():
+    # on/off light at 100 Hz, duty 1/2: odd harmonics k of relative amplitude 4/(kπ)
+    # [Fourier series]; the sum runs to 2 kHz (k ≤ 19).  rtol 1e-3: the sampled square's
+    # DFT exceeds the series by ~(πk/N)²/6 with N = 1000 samples a period.
+    t = t_axis(cycles=6)
+    x = (np.mod(t * 100.0, 1.0) < 0.5).astype(float)
+    want = sum((4 / (k * math.pi) / svm_threshold(100.0 * k)) ** 3.7 for k in range(1, 20, 2)) ** (1 / 3.7)
+    assert stroboscopic_visibility(x, FS) == pytest.approx(want, rel=1e-3)
+    assert want > 4.0

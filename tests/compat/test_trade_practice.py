@@ -92,11 +92,12 @@ def test_remedies_never_propose_what_the_circuit_already_has():
     # common practice, no source: advice to fit what is already fitted is worthless.
     led = Circuit(dimmer=PHASE_LEADING, loads=(ElectronicDriver(name="led", count=3, rated_power_w=5.0),))
     dev = _with_device(led)
-    bad_hold = [run(0.5, drop=1, firings=2, stable=False, light_fraction=0.4)]
+    bad_hold = [run(0.5, drop=[1, 0, 1, 0, 0, 1], firings=[2, 1, 2, 1, 1, 2], stable=False, light_fraction=0.4)]
     r = ck.check_holding(dev, bad_hold, np.ones(1))
     assert r.status is Status.FAIL
     assert "add a load-correction device" not in r.remedy.lower() and "fit a load-correction device" not in r.remedy.lower()
-    r = ck.check_latching(dev, [run(0.5, hc=half_cycles(6, failed=1, firing=math.nan, peak=0.01))], np.ones(1))
+    r = ck.check_latching(dev, [run(0.5, hc=half_cycles(6, failed=[1, 0, 1, 0, 0, 1], peak=0.01,
+                                                         firing=[math.nan, 90, math.nan, 90, 90, math.nan]))], np.ones(1))
     assert r.status is Status.FAIL and "a load-correction device" not in r.remedy
     # a trailing-edge dimmer is never told to use a trailing-edge dimmer
     trail = dataclasses.replace(led, dimmer=dataclasses.replace(PHASE_TRAILING, trip_current_a=1.0))

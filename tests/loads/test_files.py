@@ -424,3 +424,16 @@ def test_profile_must_hold_dimmer_or_loads():
         files.parse_profile("schema = 1\n", "p.toml")
     with pytest.raises(InputError, match=r"p.toml:2: supply: unknown key"):
         files.parse_profile("schema = 1\n[supply]\nvoltage_v = 230.0\n", "p.toml")
+
+
+def test_triac_turn_off_time_round_trips_and_is_checked():
+    d = Dimmer(name="t", triac_turn_off_time_s=35e-6)
+    text = files.profile_to_toml(d)
+    assert "triac_turn_off_time_us = 35.0\n" in text
+    back, _ = files.parse_profile(text)
+    assert back == d
+    bad = text.replace("triac_turn_off_time_us = 35.0", "triac_turn_off_time_us = 5000.0")
+    with pytest.raises(InputError) as e:
+        files.parse_profile(bad, "p.toml")
+    msg = str(e.value)
+    assert "\n" not in msg and "p.toml" in msg and "triac_turn_off_time_us" in msg

@@ -247,3 +247,45 @@ def test_a_tripping_trailing_edge_dimmer_stays_passive(turn_off_s):
     assert energy.min() > -1e-3                 # J; numerical noise only
     assert np.max(np.abs(r.load_a)) < 20.0 * 1.01
     assert np.max(r.half_cycles.load_rms_v) < 10.0   # tripped every half-cycle: the lamps stay dark
+
+
+def _dip_circuit(holding_a, turn_off_s):
+    """A resistor (135 mA at the crest) beside a lightly damped series R–L–C branch
+    (5 kHz, Z0 = 3.2 kΩ): fired at the crest, the branch rings ~0.1 A against the
+    resistor's current, so the first ring trough dips the switch current briefly below
+    50 mA without reaching zero.  Gate pulse 20 µs, over long before the trough."""
+    d = Dimmer(control="phase", wiring="with-neutral", rc_diac=None, choke_inductance_h=0.0,
+               holding_current_a=holding_a, latching_current_a=max(holding_a, 0.01), gate_window_s=20e-6,
+               triac_turn_off_time_s=turn_off_s)
+    return Circuit(supply=Supply(source_resistance_ohm=0.1, source_inductance_h=0.0, wiring_capacitance_f=0.0),
+                   dimmer=d, loads=(Linear(name="r", resistance_ohm=2400.0),
+                                    Linear(name="ring", resistance_ohm=200.0, inductance_h=0.1,
+                                           series_capacitance_f=10e-9)))
+
+
+@pytest.mark.analytic
+def test_a_dip_below_holding_shorter_than_the_turn_off_time_does_not_end_conduction():
+    # Definition of the turn-off time (TEXTBOOK_TRIAC; the value is the dimmer's): a
+    # triac stops conducting only once its current has stayed below I_H for t_q.  The
+    # dip's start and length are read from the same circuit with a switch that never
+    # drops out (I_H = 0.1 mA); then a t_q of half the dip ends conduction at the dip's
+    # start, and a t_q of twice the dip carries on to the next fall below I_H.
+    ih, n = 0.05, 20000
+    held = simulate(_dip_circuit(1e-4, 0.0), firing_angle_deg=90.0, cycles=2, samples_per_cycle=n)
+    i = np.abs(held.dimmer_a[-n // 2:])
+    deg = (np.arange(n // 2)) * 360.0 / n
+    after = np.flatnonzero((deg > 90.5) & (i < ih))
+    k1 = after[0]
+    k2 = k1 + int(np.argmax(i[k1:] >= ih))              # back above I_H
+    k3 = k2 + int(np.argmax(i[k2:] < ih))                # the next fall below I_H (the natural end)
+    dip_s = (k2 - k1) / (n * 50.0)
+    assert 5e-6 < dip_s < 40e-6 and i[k1:k2].min() > 0.01 and deg[k3] > 140.0   # the circuit does what it says
+    # atol 0.03°: the 1 µs sample grid (0.018°) plus the 0.1 µs event tolerance
+    short = simulate(_dip_circuit(ih, 0.5 * dip_s), firing_angle_deg=90.0, cycles=2, samples_per_cycle=n)
+    assert short.half_cycles.extinction_angle_deg[-1] == pytest.approx(deg[k1], abs=0.03)
+    long = simulate(_dip_circuit(ih, 2.0 * dip_s), firing_angle_deg=90.0, cycles=2, samples_per_cycle=n)
+    hc = long.half_cycles
+    assert hc.extinction_angle_deg[-1] == pytest.approx(deg[k3], abs=0.03)
+    assert np.all(hc.firings == 1)
+    # until that end the switch current is the held one (atol 1 mA: the two runs' steps differ)
+    np.testing.assert_allclose(np.abs(long.dimmer_a[-n // 2:][:k3 - 5]), i[:k3 - 5], atol=1e-3)

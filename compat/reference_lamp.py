@@ -1,0 +1,71 @@
+"""The trade's reference for acceptable light: a dimmed filament lamp.
+
+A filament lamp on a leading-edge dimmer ripples at twice the mains frequency, more so
+as it is dimmed (a cooler filament's light varies more steeply with its temperature),
+and the trade accepts that light at every setting (common practice, no source).  The
+flicker check therefore compares a circuit's stroboscopic visibility (SVM, see
+``compat.flicker``) with that of a filament lamp giving the same mean light on the same
+supply, simulated with the same models, so an error in the filament model moves both.
+
+The reference lamp is a general-service lamp of ``REFERENCE_FILAMENT_W`` (or the
+circuit's smallest filament lamp, if smaller) on an ideal phase-control leading-edge
+dimmer with neutral, at the circuit's supply voltage and frequency and the default loop
+impedance.  A smaller lamp has a thinner filament and ripples more, so the smallest
+common lamp is the most lenient reference the trade still calls acceptable.
+"""
+from __future__ import annotations
+
+from functools import lru_cache
+
+import numpy as np
+
+from compat import flicker
+from compat.runs import samples_per_cycle
+from loads import simulation as sim
+from loads.circuit import Circuit
+from loads.dimmer import Dimmer
+from loads.filament import Filament
+from loads.supply import Supply
+
+# common practice, no source: 25 W is the smallest general-service filament lamp in
+# ordinary household use
+REFERENCE_FILAMENT_W = 25.0
+# engineering choice: firing angles of the reference curve [deg]; the light falls to a
+# few parts per thousand of full by 150° and the curve is interpolated in between
+_ANGLES_DEG = tuple(float(a) for a in range(0, 176, 10))
+_CYCLES = 5               # engineering choice: from the steady state, 5 cycles, the last 3 analysed
+_ANALYSED = 3
+_SAMPLES_PER_CYCLE = 200  # as the sweep's grid (compat.evaluate)
+
+
+def reference_power_w(circuit: Circuit) -> float:
+    """Rated power of the reference filament lamp for a circuit [W]."""
+    own = [g.rated_power_w for g in circuit.all_loads if isinstance(g, Filament)]
+    return min([REFERENCE_FILAMENT_W, *own])
+
+
+@lru_cache(maxsize=16)
+def filament_svm_curve(voltage_v: float, frequency_hz: float, power_w: float) -> tuple[np.ndarray, np.ndarray]:
+    """(mean light as a fraction of the lamp's rated light [1], SVM [1]) of the reference
+    lamp across the firing angles, sorted by light."""
+    c = Circuit(name="reference filament lamp", supply=Supply(voltage_v=voltage_v, frequency_hz=frequency_hz),
+                dimmer=Dimmer(control="phase", wiring="with-neutral", rc_diac=None),
+                loads=(Filament(name="reference", count=1, rated_power_w=power_w, rated_voltage_v=voltage_v),))
+    light, svm = [], []
+    for a in _ANGLES_DEG:
+        r = sim.simulate(c, firing_angle_deg=a, cycles=_CYCLES, start="steady", samples_per_cycle=_SAMPLES_PER_CYCLE)
+        spc = samples_per_cycle(r)
+        x = np.atleast_2d(r.group_light)[0, -_ANALYSED * spc:]
+        x = flicker.remove_drift(x, spc // 2)
+        light.append(float(np.mean(x)))
+        svm.append(flicker.stroboscopic_visibility(x, spc * frequency_hz))
+    order = np.argsort(light)
+    return np.asarray(light)[order], np.asarray(svm)[order]
+
+
+def filament_svm(circuit: Circuit, light_fraction: float) -> float:
+    """SVM of the reference filament lamp giving ``light_fraction`` of its rated light
+    on the circuit's supply [1] (interpolated in the light; the ends held)."""
+    s = circuit.supply
+    lf, svm = filament_svm_curve(float(s.voltage_v), float(s.frequency_hz), float(reference_power_w(circuit)))
+    return float(np.interp(light_fraction, lf, svm))
