@@ -105,7 +105,7 @@ def test_newline_in_a_quoted_key_stays_on_one_line():
 ALLOWED_SUFFIXES = ("_v", "_hz", "_w", "_va", "_a", "_ma", "_ohm", "_uh", "_mh", "_nf", "_uf", "_us", "_ms",
                     "_k", "_c", "_pct", "_deg", "_a2s")
 UNITLESS = {"name", "count", "gang", "fins_removed", "max_lamps", "edge", "wiring", "control", "curve",
-            "bleeder_kind", "dimmable", "rc_diac", "saturation_flux_ratio", "saturated_inductance_ratio"}
+            "bleeder_kind", "dimmable", "rc_diac", "gate_drive", "saturation_flux_ratio", "saturated_inductance_ratio"}
 
 
 def test_every_field_of_every_model_has_a_file_key_with_a_unit():
