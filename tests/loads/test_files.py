@@ -15,7 +15,7 @@ import pytest
 
 from loads import catalogue, files
 from loads.circuit import LOAD_CLASSES, Circuit, Range
-from loads.dimmer import Dimmer
+from loads.dimmer import Dimmer, GateDrive
 from loads.driver import ElectronicDriver
 from loads.errors import InputError
 from loads.filament import Filament
@@ -424,3 +424,17 @@ def test_profile_must_hold_dimmer_or_loads():
         files.parse_profile("schema = 1\n", "p.toml")
     with pytest.raises(InputError, match=r"p.toml:2: supply: unknown key"):
         files.parse_profile("schema = 1\n[supply]\nvoltage_v = 230.0\n", "p.toml")
+
+
+def test_gate_drive_and_soft_start_round_trip_and_bad_values_name_the_key():
+    d = Dimmer(name="x", control="phase", rc_diac=None, gate_drive="single-pulse", soft_start_s=0.12)
+    text = files.profile_to_toml(d)
+    assert 'gate_drive = "single-pulse"\n' in text and "soft_start_ms = 120.0\n" in text
+    back, _ = files.parse_profile(text)
+    assert back == d and back.gate_drive is GateDrive.SINGLE_PULSE
+    assert Dimmer().gate_drive is GateDrive.UNTIL_LATCHED and Dimmer().soft_start_s == 0.05
+    for bad, key in (('gate_drive = "held"', "gate_drive"), ("soft_start_ms = -5.0", "soft_start_ms")):
+        wrong = re.sub(r"^" + key + r" = .*$", bad, text, flags=re.M)
+        with pytest.raises(InputError) as info:
+            files.parse_profile(wrong, "p.toml")
+        assert key in str(info.value) and "\n" not in str(info.value)
