@@ -512,8 +512,9 @@ def _settled_off(pk: _Packed, st: _State, max_cycles: int) -> _State:
     at a time, the change of every unknown over the cycle, relative to its scale, is
     watched; its ratio to the previous cycle's change r gives the transient's decay per
     cycle, and the transient still to come is about change·r/(1 − r) (a geometric tail).
-    Settled when that, or the change itself where it no longer shrinks (the solver's
-    noise), is below OFF_SETTLE_TOL."""
+    Settled when that is below OFF_SETTLE_TOL, or when the change over a cycle is at the
+    solver's noise (a drift that slow, such as a cold filament warming by a few hundredths
+    of a kelvin a cycle on the off-state current, matters to no check)."""
     prev_y, prev_d = st.y, None
     for _ in range(max_cycles):
         _, _, st, _ = _run(pk, st, 1, 20)
