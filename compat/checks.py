@@ -19,7 +19,7 @@ from compat.perception import cie_lightness, perceived_brightness
 from compat.report import CheckResult, Status
 from compat.runs import SettingRun, samples_per_cycle, tail
 from loads.circuit import Circuit
-from loads.dimmer import Edge, Wiring
+from loads.dimmer import Control, Dimmer, Edge, GateDrive, Wiring
 from loads.driver import ElectronicDriver
 from loads.electronic_transformer import ElectronicTransformer
 from loads.linear import Linear
@@ -671,16 +671,75 @@ def transformer_dc_headroom_a(tr: MagneticTransformer) -> float:
     return (tr.saturation_flux_ratio - 1.0) * i_mag_peak
 
 
+def switched_dc_voltage_v(circuit: Circuit, run: SettingRun) -> float:
+    """The DC voltage the dimmer's conduction pattern imposes on the load [V]: the mean,
+    over the analysed whole cycles, of the supply EMF inside the simulated conduction
+    windows (firing to extinction angle of each half-cycle, signed by its polarity):
+    V_dc = V̂·Σ ±(cos α − cos β) / (2π·cycles).  Windows that mirror each other cancel.
+    This is what persists: the mean load voltage of a few cycles in a sweep also holds
+    the flux of an iron core relaxing after the setting changed (it reverses with the
+    sweep direction and dies away with the magnetising time constant).  A conduction
+    still running at the end of the record closes with its cycle dropped; one carried
+    into the next half-cycle without an extinction of its own ends at that one's firing
+    (or, with none, its own firing angle 180° later)."""
+    hc = run.half_cycles
+    n = (len(hc) // 2) * 2
+    fire = np.asarray(hc.firing_angle_deg[len(hc) - n:], dtype=float)
+    ext = np.asarray(hc.extinction_angle_deg[len(hc) - n:], dtype=float)
+    pol = np.asarray(hc.polarity[len(hc) - n:], dtype=float)
+    if n >= 2 and np.isfinite(fire[-1]) and not np.isfinite(ext[-1]):
+        n -= 2
+    if n < 2:
+        return 0.0
+    total = 0.0
+    for j in range(n):
+        if not np.isfinite(fire[j]):
+            continue
+        if np.isfinite(ext[j]):
+            b = ext[j]
+        elif j + 1 < len(fire) and np.isfinite(fire[j + 1]):
+            b = 180.0 + fire[j + 1]
+        else:
+            b = 180.0 + fire[j]
+        total += pol[j] * (math.cos(math.radians(fire[j])) - math.cos(math.radians(b)))
+    return float(circuit.supply.peak_v * total / (2.0 * math.pi * (n // 2)))
+
+
+def fires_symmetrically(dimmer: Dimmer) -> bool:
+    """By its build, does the dimmer fire both polarities alike: a trailing-edge switch,
+    a phase controller whose gate drive lasts until the switch latches, or a trigger
+    diode without asymmetry."""
+    if dimmer.edge is Edge.TRAILING:
+        return True
+    if dimmer.control is Control.PHASE:
+        return dimmer.gate_drive is GateDrive.UNTIL_LATCHED
+    return dimmer.rc_diac is None or dimmer.rc_diac.asymmetry_v == 0.0
+
+
+def _dc_remedy(dimmer: Dimmer) -> str:
+    """The remedy for DC in a transformer, worded by its cause in this dimmer."""
+    if dimmer.edge is Edge.LEADING and dimmer.control is Control.RC_DIAC and not fires_symmetrically(dimmer):
+        return ("Its trigger diode breaks over at different voltages in the two polarities: use a dimmer with "
+                "symmetric firing made for iron-core transformers, or electronic transformers.")
+    if dimmer.edge is Edge.LEADING and dimmer.control is Control.PHASE and not fires_symmetrically(dimmer):
+        return ("Its single short gate pulse can end while the previous half-cycle's current still flows, leaving "
+                "one polarity unfired: use a dimmer that drives the gate until the switch latches (as those made "
+                "for iron-core transformers do), or electronic transformers.")
+    return ("The dimmer fires both polarities alike, so the DC comes from conduction that differs between them "
+            "(see the latching and holding checks): cure that, or use electronic transformers.")
+
+
 def check_dc_offset(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResult:
     """Firing asymmetry: DC in the line current and saturation of iron-core transformers.
 
-    The DC voltage the dimmer leaves on the load (mean load voltage over whole cycles)
-    is read from the simulated waveform.  In a transformer it walks the flux until the
-    primary carries the DC current V_dc/R_primary — with a magnetising time constant of
-    seconds, longer than the simulated span — so the settled DC current is computed
-    from the simulated V_dc and compared with the current that takes the core to its
-    saturation knee.  Magnetising peaks already visible in the simulation (peak
-    asymmetry between polarities) are reported as well."""
+    The DC voltage the dimmer leaves on the load is the one its conduction pattern
+    imposes (``switched_dc_voltage_v``, from the simulated firing and extinction angles).
+    In a transformer it walks the flux until the primary carries the DC current
+    V_dc/R_primary — with a magnetising time constant of seconds, longer than the
+    simulated span — so the settled DC current is computed from V_dc and compared with
+    the current that takes the core to its saturation knee.  Magnetising peaks already
+    visible in the simulation (peak asymmetry between polarities) are reported as well;
+    the mean load voltage measured over the analysed cycles is kept in the details."""
     if not runs:
         return _na("dc-offset", "No sweep was simulated.", safety=True)
     trs = [g for g in circuit.loads if isinstance(g, MagneticTransformer)]
@@ -690,7 +749,7 @@ def check_dc_offset(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResult
         n2 = (len(hc) // 2) * 2
         if n2 == 0 or not np.any(np.isfinite(hc.firing_angle_deg)):
             continue
-        v_dc = float(np.mean(r.result.load_v[r.span]))
+        v_dc = switched_dc_voltage_v(circuit, r)
         i_dc = float(np.mean(hc.mean_current_a[len(hc) - n2:]))
         pos = hc.polarity[len(hc) - n2:] > 0
         pk = hc.peak_line_current_a[len(hc) - n2:]
@@ -708,7 +767,8 @@ def check_dc_offset(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResult
         return _na("dc-offset", "No half-cycle conducted.", safety=True)
     (ratio, asym), r, v_dc, i_dc, asym = worst
     details = {"worst_setting": r.setting, "direction": r.direction, "dc_voltage_v": v_dc, "dc_current_a": i_dc,
-               "peak_asymmetry_pct": asym}
+               "peak_asymmetry_pct": asym, "mean_load_voltage_v": float(np.mean(r.result.load_v[r.span])),
+               "fires_symmetrically": fires_symmetrically(circuit.dimmer)}
     if not trs:
         return _res("dc-offset", Status.NOT_APPLICABLE, abs(v_dc), None, "V", None,
                     f"No iron-core transformer on the circuit; the {abs(v_dc):.2f} V DC the dimmer leaves does no harm to these lamps.",
@@ -723,11 +783,11 @@ def check_dc_offset(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResult
     if ratio > 1.0 or asym > DC_ASYMMETRY_FAIL_PCT:
         return _res("dc-offset", Status.FAIL, i_set, head, "A", m,
                     base + ": the core saturates, hums and overheats.",
-                    remedy="Use a dimmer with symmetric firing made for iron-core transformers, or an electronic transformer.",
+                    remedy=_dc_remedy(circuit.dimmer),
                     sources=("TRADE",), safety=True, details=details)
     if ratio > 0.5 or asym > DC_ASYMMETRY_CAUTION_PCT:
         return _res("dc-offset", Status.CAUTION, i_set, head, "A", m, base + ": close to saturation; listen for hum.",
-                    remedy="Use a dimmer with symmetric firing made for iron-core transformers.",
+                    remedy=_dc_remedy(circuit.dimmer),
                     sources=("TRADE",), safety=True, details=details)
     return _res("dc-offset", Status.PASS, i_set, head, "A", m, base + "; the core stays out of saturation.",
                 sources=("TRADE",), safety=True, details=details)

@@ -343,8 +343,9 @@ def build_parser() -> argparse.ArgumentParser:
     g.add_argument("--setting", type=float, help="control setting 0–1 (1 is brightest)")
     g.add_argument("--firing-angle", type=float, metavar="DEG", help="force the firing angle [deg]")
     p.add_argument("--cycles", type=int, default=10, help="mains cycles to simulate (default 10)")
-    p.add_argument("--from", dest="start", choices=("cold", "steady"), default="cold",
-                   help="cold: filaments cold, capacitors empty (default); steady: periodic state")
+    p.add_argument("--from", dest="start", choices=("cold", "switch-on", "steady"), default="cold",
+                   help="cold: filaments cold, capacitors empty (default); switch-on: as cold, the dimmer "
+                        "starting up as it does; steady: periodic state")
     g = p.add_mutually_exclusive_group()
     g.add_argument("--json", action="store_true")
     g.add_argument("--csv", action="store_true", help="columns t_s,supply_v,load_v,load_a,dimmer_a")

@@ -3,14 +3,16 @@
 ``evaluate`` walks the control range down (from the steady state at full) and up (from
 the lamp-out state), keeping each setting's full simulated result so that the switch
 checks (latching, holding, peaks, DC, spike, dissipation, harmonics, flicker) read the
-same half-cycles and waveforms the dimming curve came from; it adds cold switch-on runs
-across the switch-on angle and one off-state run.  Inputs given as ranges are
+same half-cycles and waveforms the dimming curve came from; it adds switch-on runs
+across the switch-on angle (the supply appears on the circuit at rest and the dimmer
+starts up as it does) and one off-state run.  Inputs given as ranges are
 evaluated at each end; a check whose result flips between pass and fail names the
 deciding input and the verdict becomes ``site-test-needed``.
 """
 from __future__ import annotations
 
 import dataclasses
+import math
 import re
 from collections.abc import Callable
 from concurrent.futures import ThreadPoolExecutor
@@ -23,6 +25,7 @@ from compat.report import CheckResult, Report, Status
 from compat.runs import Evidence, SettingRun
 from compat.verdict import attached_cautions, overall
 from loads.circuit import Circuit
+from loads.dimmer import Edge
 from loads.errors import InputError
 
 MIN_SETTINGS = 21                  # brief: at least 21 settings per direction
@@ -88,13 +91,26 @@ def walk(circuit: Circuit, settings: list[float], direction: str, sim, *, tick=N
     return tuple(runs)
 
 
+def switch_on_cycles(circuit: Circuit) -> int:
+    """Cycles a switch-on run covers: INRUSH_CYCLES after a trailing-edge soft start has
+    brought the conduction to its set value."""
+    d = circuit.dimmer
+    soft = d.soft_start_s if d.edge is Edge.TRAILING else 0.0
+    return INRUSH_CYCLES + math.ceil(soft * circuit.supply.frequency_hz - 1e-9)
+
+
 def switch_on_runs(circuit: Circuit, sim, *, tick=None, cancel=None) -> tuple:
-    """Cold starts at setting 1 across the switch-on angle: ((angle [deg], result), ...)."""
+    """Switch-on at setting 1 across the switch-on angle, the supply appearing at that
+    angle on the circuit at rest and the dimmer starting up as it does (a phase
+    controller waits for the first zero crossing; a trailing-edge dimmer closes there,
+    with its soft start; a trigger diode fires when its empty timing capacitor first
+    reaches breakover): ((angle [deg], result), ...)."""
     out = []
+    cycles = switch_on_cycles(circuit)
     for a in INRUSH_ANGLES_DEG:
         if cancel is not None and cancel.is_set():
             raise Cancelled()
-        out.append((a, sim.simulate(circuit, setting=1.0, cycles=INRUSH_CYCLES, start="cold", switch_on_deg=a,
+        out.append((a, sim.simulate(circuit, setting=1.0, cycles=cycles, start="switch-on", switch_on_deg=a,
                                     samples_per_cycle=INRUSH_SAMPLES_PER_CYCLE)))
         if tick:
             tick()

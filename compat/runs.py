@@ -80,7 +80,7 @@ class SettingRun:
 class Evidence:
     """Everything one evaluation simulated.
 
-    down / up: the sweep in each direction, in the order visited; inrush: cold starts
+    down / up: the sweep in each direction, in the order visited; inrush: switch-on runs
     at setting 1 as (switch-on angle [deg], result); off: the switch never firing, from
     cold; harmonics: the worst setting re-run on a fine grid for the FFT;
     light_weights: per-group weights (summing to 1) giving total light fraction."""

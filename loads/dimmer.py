@@ -14,8 +14,16 @@ A series choke L_c limits di/dt; a snubber R–C sits across the dimmer.
 
 Control:
 
-* ``phase`` – an ideal controller: the gate is driven from α for ``gate_window_s``.
+* ``phase`` – an ideal controller: the gate is driven from α for ``gate_window_s``, and
+  with ``gate_drive = "until-latched"`` (the default) on after that until the switch has
+  latched with the current of this half-cycle's polarity, or the half-cycle ends (a
+  pulse train or a gate held on, as dimmers made for inductive loads have: an iron-core
+  transformer's lagging current from the previous half-cycle may still flow when the
+  window ends, and a single pulse would then leave that polarity unfired).  With
+  ``"single-pulse"`` the drive ends with the window whatever the switch did.
   A setting s ∈ [0, 1] maps linearly to α = α_max − s·(α_max − α_min).
+  The controller times its firing from the supply's zero crossings, so after the supply
+  appears it does nothing until it has seen the first one.
 * ``rc-diac`` – the classic timing network.  The timing capacitor C_t charges through
   R_fixed + (1 − s)·R_var from the voltage across the dimmer, so the charging current
   flows through the load:  C_t·dv_t/dt = (v_dimmer − v_t)/R_t − i_diac.
@@ -30,7 +38,10 @@ Trailing edge (reverse phase): the switch closes at the voltage zero and opens a
 set angle whatever the current, ramping its current linearly to zero over
 ``turn_off_time_s`` centred on that angle; an inductive load resists the ramp and drives
 the dimmer voltage up, to the clamp (V_clamp) if need be.  A current above ``trip_current_a``
-turns the switch off for the rest of the half-cycle, by the same ramp.
+turns the switch off for the rest of the half-cycle, by the same ramp.  After the supply
+appears the switch first closes at the next zero crossing, and over ``soft_start_s`` the
+conduction angle is ramped from zero to its set value (sampled at the end of each
+half-cycle; 0: no soft start).
 
 ``low_end_trim``: the dimmer has a preset with which the installer raises the light at
 the bottom of the knob's travel; failures confined to settings below some point then
@@ -60,6 +71,13 @@ class Wiring(StrEnum):
 class Control(StrEnum):
     PHASE = "phase"
     RC_DIAC = "rc-diac"
+
+
+class GateDrive(StrEnum):
+    """How a phase controller drives a leading-edge switch's gate (see module docstring)."""
+
+    UNTIL_LATCHED = "until-latched"
+    SINGLE_PULSE = "single-pulse"
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -116,6 +134,8 @@ class Dimmer:
     latching_current_a: float = 0.050         # REFERENCES: latching 1.5–3× holding [mem]
     gate_trigger_current_a: float = 0.010     # common practice, no source (sensitive-gate triacs 5–35 mA)
     gate_window_s: float = 100e-6             # engineering choice: a short pulse train from a phase controller
+    gate_drive: GateDrive = GateDrive.UNTIL_LATCHED   # common practice, no source: controllers for inductive
+                                              # loads keep driving the gate until the switch latches
     on_state_voltage_v: float = 1.0           # common practice, no source (triac V_T ≈ 1–1.5 V)
     on_state_resistance_ohm: float = 0.02     # common practice, no source (triac slope resistance tens of mΩ)
     surge_peak_a: float = 80.0                # common practice, no source (a 4–8 A triac: 60–100 A for one half-cycle)
@@ -135,6 +155,9 @@ class Dimmer:
     turn_off_time_s: float = 50e-6            # common practice, no source: transistor dimmers ramp the current
                                               # down over some tens of µs to limit interference
     trip_current_a: float = 20.0              # common practice, no source
+    soft_start_s: float = 0.05                # from memory: transistor dimmers bring the lamps up over a few
+                                              # mains cycles to a fraction of a second at switch-on; the short
+                                              # end (engineering choice: the surge is not understated)
     # phase control
     min_firing_angle_deg: float = 20.0
     max_firing_angle_deg: float = 160.0
@@ -146,6 +169,7 @@ class Dimmer:
         object.__setattr__(self, "edge", Edge(self.edge))
         object.__setattr__(self, "wiring", Wiring(self.wiring))
         object.__setattr__(self, "control", Control(self.control))
+        object.__setattr__(self, "gate_drive", GateDrive(self.gate_drive))
         require(self.rated_load_w > 0, "rated_load_w", self.rated_load_w, "W must be positive")
         for name in ("rated_transformer_va", "rated_led_w"):
             v = getattr(self, name)
@@ -171,6 +195,7 @@ class Dimmer:
         require(0 <= self.turn_off_time_s <= 1e-3, "turn_off_time_s", self.turn_off_time_s, "s must be 0–1 ms")
         require(0 <= self.triac_turn_off_time_s <= 1e-3, "triac_turn_off_time_s", self.triac_turn_off_time_s,
                 "s must be 0–1 ms")
+        require(0 <= self.soft_start_s <= 5.0, "soft_start_s", self.soft_start_s, "s must be 0–5 s")
         for name in ("choke_inductance_h", "snubber_capacitance_f", "self_supply_a"):
             require(getattr(self, name) >= 0, name, getattr(self, name), "must not be negative")
         require(0 <= self.min_firing_angle_deg < self.max_firing_angle_deg <= 180, "min_firing_angle_deg",

@@ -92,6 +92,7 @@ _FILE_UNIT: dict[str, str] = {
     "series_capacitance_f": "nf",
     "bulk_capacitance_f": "uf",
     "gate_window_s": "us",
+    "soft_start_s": "ms",
     "min_light_fraction": "pct",
 }
 

@@ -59,19 +59,22 @@ N_CORE = 7
 # --- circuit parameters P[...] -----------------------------------------------------
 (VPK, OMEGA, RS, LS, CB, LC, RON, VTD, IH, ILATCH, IGT, GATEW, RSN, CSN, RT, CT,
  VBOP, VBON, VONP, VONN, RG, IDOFF, ISS, VCL, RCL, TRIP, ALPHA, GLEAK, HMAX, RTOL,
- EVTOL, EARLY, TRAMP, CW, RW, DIDTC, TQ, N_P) = range(38)
+ EVTOL, EARLY, TRAMP, CW, RW, DIDTC, TQ, SOFT, N_P) = range(39)
 
 # --- integer parameters IP[...] ----------------------------------------------------
-EDGE, CONTROL, NOFIRE, NG, NY, N_IP = range(6)
+EDGE, CONTROL, NOFIRE, NG, NY, GDRIVE, N_IP = range(7)
 LEADING, TRAILING = 0, 1
 PHASE, RC_DIAC = 0, 1
+SINGLE_PULSE, UNTIL_LATCHED = 0, 1   # IP[GDRIVE]: a phase controller's gate drive (loads.dimmer)
 
 # --- discrete state S[...] (ints) ----------------------------------------------------
 SW_ON, GATE, LATCHED, DIAC_ON, DIAC_POL, CLAMP, HCIDX, FIRE_HC, TRIPPED, CPOL, N_S = range(11)
 # followed by one mode per group
 
 # --- discrete state Q[...] (floats) ------------------------------------------------
-GATE_END, T_FIRE, T_OFF, HC_START, RAMP_I0, T_RAMP_END, DIDT, T_DIP, T_DIP_END, N_Q = range(10)
+GATE_END, T_FIRE, T_OFF, HC_START, RAMP_I0, T_RAMP_END, DIDT, T_DIP, T_DIP_END, T_SYNC, N_Q = range(11)
+# Q[T_SYNC]: the first supply zero crossing after the supply appeared; a phase controller
+# does nothing before it, and a trailing-edge soft start ramps from it (−inf: long ago)
 # followed by four per group: (level, t_up, t_down, sense state) – see _sense_edges
 
 # --- half-cycle record columns -------------------------------------------------------
@@ -293,7 +296,9 @@ def guards(y, P, IP, S, gk, gxo, gpo, gnp, GP, g):
             # inside one step is still seen to fall below the threshold
             ic = S[CPOL] * y[ISW]
             if S[GATE] != 0 and S[LATCHED] == 0:
-                g[k] = abs(y[ISW]) - P[ILATCH]
+                # a drive held until the switch latches waits for this half-cycle's current
+                # (CPOL holds its polarity), not the previous one's still flowing
+                g[k] = (S[CPOL] * y[ISW] if IP[GDRIVE] == UNTIL_LATCHED else abs(y[ISW])) - P[ILATCH]
                 k += 1
             if S[GATE] == 0 and S[LATCHED] != 0:
                 g[k] = ic - P[IH]
@@ -653,9 +658,12 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                             S[LATCHED] = 1     # gated again during a dip: it conducts on
                         _record_firing(t, S, Q, HC, P)
             if S[SW_ON] != 0:
-                if S[GATE] != 0 and S[LATCHED] == 0 and abs(y[ISW]) >= P[ILATCH]:
+                i_latch = S[CPOL] * y[ISW] if IP[GDRIVE] == UNTIL_LATCHED else abs(y[ISW])
+                if S[GATE] != 0 and S[LATCHED] == 0 and i_latch >= P[ILATCH]:
                     S[LATCHED] = 1
                     S[CPOL] = 1 if y[ISW] > 0.0 else -1
+                    if IP[GDRIVE] == UNTIL_LATCHED and Q[GATE_END] == np.inf:
+                        S[GATE] = 0       # past its window, the drive stops once the switch latches
                     changed = True
                 if S[GATE] == 0:
                     if S[LATCHED] == 0:
@@ -754,13 +762,31 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
 
 
 @numba.njit(cache=True, _nrt=False)
-def _fire_phase(t, y, P, S, Q, HC):
-    """Phase control: the gate pulse starts at t."""
+def _half_cycle_polarity(Q, P):
+    """+1 in a half-cycle of positive supply voltage, −1 in a negative one."""
+    k = int(round(Q[HC_START] * P[OMEGA] / math.pi))
+    return 1 if k % 2 == 0 else -1
+
+
+@numba.njit(cache=True, _nrt=False)
+def _fire_phase(t, y, P, IP, S, Q, HC):
+    """Phase control: the gate drive starts at t."""
     Q[T_FIRE] = np.inf
+    if IP[GDRIVE] == UNTIL_LATCHED:
+        pol = _half_cycle_polarity(Q, P)
+        if S[SW_ON] != 0:
+            # the previous half-cycle's current still flows: the gate takes it over, so
+            # the switch conducts on without a break (that conduction ends here)
+            f = S[FIRE_HC]
+            if 0 <= f < HC.shape[0]:
+                HC[f, H_EXT] = _angle_deg(t, HC[f, H_START], P)
+        S[CPOL] = pol
+        S[LATCHED] = 1 if pol * y[ISW] >= P[ILATCH] else 0
+    else:
+        S[LATCHED] = 0 if abs(y[ISW]) < P[ILATCH] else 1
+        S[CPOL] = 1 if y[ISW] > 0.0 else -1
     S[SW_ON] = 1
     S[GATE] = 1
-    S[LATCHED] = 0 if abs(y[ISW]) < P[ILATCH] else 1
-    S[CPOL] = 1 if y[ISW] > 0.0 else -1
     Q[GATE_END] = t + P[GATEW]
     _record_firing(t, S, Q, HC, P)
 
@@ -772,16 +798,28 @@ def _start_half_cycle(t, P, IP, S, Q, HC):
         HC[h, H_START] = t
     Q[HC_START] = t
     S[TRIPPED] = 0
-    half = math.pi / P[OMEGA]
     alpha_t = P[ALPHA] / P[OMEGA]
     if IP[EDGE] == LEADING and IP[CONTROL] == PHASE:
         Q[T_FIRE] = t + alpha_t if IP[NOFIRE] == 0 else np.inf
     else:
         Q[T_FIRE] = np.inf
     if IP[EDGE] == TRAILING:
-        Q[T_OFF] = t + half - alpha_t - 0.5 * P[TRAMP] if IP[NOFIRE] == 0 else np.inf
+        Q[T_OFF] = _trailing_off_time(t, P, Q) if IP[NOFIRE] == 0 else np.inf
     else:
         Q[T_OFF] = np.inf
+
+
+@numba.njit(cache=True, _nrt=False)
+def _trailing_off_time(t_hc, P, Q):
+    """When a trailing-edge switch starts its turn-off in the half-cycle starting at t_hc:
+    the set conduction time, ramped from zero over the soft start after the supply's
+    first zero crossing (the ramp's value at the half-cycle's end, so no half-cycle is
+    skipped), and never shorter than the turn-off ramp itself."""
+    half = math.pi / P[OMEGA]
+    cond = half - P[ALPHA] / P[OMEGA]
+    if P[SOFT] > 0.0 and t_hc + half - Q[T_SYNC] < P[SOFT]:
+        cond = max(cond * (t_hc + half - Q[T_SYNC]) / P[SOFT], P[TRAMP])
+    return t_hc + cond - 0.5 * P[TRAMP]
 
 
 @numba.njit(cache=True, _nrt=False)
@@ -942,6 +980,8 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
     t = t0
     k_hb = math.floor(t / half + 1e-9)
     t_hb = (k_hb + 1) * half
+    # a phase controller energised inside a half-cycle waits for the next zero crossing
+    synced = t >= Q[T_SYNC] - 1e-12
     if abs(t - k_hb * half) < 1e-12:
         _start_half_cycle(t, P, IP, S, Q, HC)
         if IP[EDGE] == TRAILING and IP[NOFIRE] == 0:
@@ -953,13 +993,13 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             HC[S[HCIDX], H_START] = k_hb * half
         if IP[EDGE] == LEADING and IP[CONTROL] == PHASE and IP[NOFIRE] == 0:
             tf = k_hb * half + P[ALPHA] / P[OMEGA]
-            Q[T_FIRE] = tf if tf > t else np.inf
+            Q[T_FIRE] = tf if (tf > t and synced) else np.inf
         if IP[EDGE] == TRAILING and IP[NOFIRE] == 0:
-            to = (k_hb + 1) * half - P[ALPHA] / P[OMEGA] - 0.5 * P[TRAMP]
-            Q[T_OFF] = to if to > t else np.inf
-            S[SW_ON] = 1 if to > t else 0
+            to = _trailing_off_time(k_hb * half, P, Q)
+            Q[T_OFF] = to if (to > t and synced) else np.inf
+            S[SW_ON] = 1 if (to > t and synced) else 0
     if abs(t - Q[T_FIRE]) < 1e-12:
-        _fire_phase(t, y, P, S, Q, HC)
+        _fire_phase(t, y, P, IP, S, Q, HC)
     for _ in range(5):
         update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP)
         make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F0, G, work, F1, rhs, nstate)
@@ -1140,7 +1180,10 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         timed = False
         # time events
         if IP[CONTROL] == PHASE and IP[EDGE] == LEADING and S[GATE] != 0 and abs(t - Q[GATE_END]) < 1e-12:
-            S[GATE] = 0
+            if IP[GDRIVE] == UNTIL_LATCHED and S[LATCHED] == 0:
+                Q[GATE_END] = np.inf     # driven on until it latches or the half-cycle ends
+            else:
+                S[GATE] = 0
             event = True
             timed = True
         if abs(t - Q[T_OFF]) < 1e-12:
@@ -1158,6 +1201,15 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             event = True           # the dip has lasted the turn-off time (see update_modes)
             timed = True
         if abs(t - t_hb) < 1e-12:
+            if IP[GDRIVE] == UNTIL_LATCHED and S[GATE] != 0 and Q[GATE_END] == np.inf:
+                # a drive held past its window ends with its half-cycle; a switch that has
+                # not latched by then stops conducting
+                S[GATE] = 0
+                if S[SW_ON] != 0 and S[LATCHED] == 0:
+                    if S[HCIDX] < HC.shape[0]:
+                        HC[S[HCIDX], H_FAILED] += 1.0
+                    _chop_loads(y, y[ISW], IP, gk, gxo, gpo, gnp, gn, GP)
+                    _record_off(t, S, Q, HC, P, True, y, False)
             _end_half_cycle(t, P, IP, S, Q, gk, gpo, gnp, GP)
             S[HCIDX] += 1
             _start_half_cycle(t, P, IP, S, Q, HC)
@@ -1169,7 +1221,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             event = True
             timed = True
         if abs(t - Q[T_FIRE]) < 1e-12:
-            _fire_phase(t, y, P, S, Q, HC)
+            _fire_phase(t, y, P, IP, S, Q, HC)
             event = True
             timed = True
         if event and crossed and not timed and _modes_neutral(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, snap):

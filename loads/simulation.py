@@ -1,8 +1,9 @@
 """Public face of the circuit simulator: run a circuit, get waveforms and figures.
 
 ``simulate`` runs one control setting (or one forced firing angle) for N mains cycles
-from a cold start, from the periodic steady state, or from a state carried over from a
-previous run; ``sweep`` walks the control range up or down carrying the state from one
+from a cold start, from a switch-on (a cold start at which the dimmer starts up as it
+does), from the periodic steady state, from the lamp-out state, or from a state carried
+over from a previous run; ``sweep`` walks the control range up or down carrying the state from one
 setting to the next.  The numerical work is done in ``loads.kernel``.
 
 Angles are measured from the supply zero crossing that starts each half-cycle [deg].
@@ -24,13 +25,16 @@ from loads import kernel as K
 from loads import linear as _lin
 from loads import transformer as _tr
 from loads.circuit import Circuit
-from loads.dimmer import Control, Edge
+from loads.dimmer import Control, Edge, GateDrive
 from loads.errors import InputError
 from loads.load import LoadKind
 
 
 class Start(StrEnum):
-    COLD = "cold"        # filaments at ambient, capacitors empty
+    COLD = "cold"        # filaments at ambient, capacitors empty, the dimmer's control already running
+    SWITCH_ON = "switch-on"   # as cold, and the supply appears at the switch-on angle: the dimmer
+                              # starts up as it does (a phase controller waits for the first zero
+                              # crossing; a trailing-edge dimmer closes there, with its soft start)
     STEADY = "steady"    # run until the half-cycles repeat, then record
     OFF = "off"          # lamp-out periodic state: dimmer energised, switch never fired
 
@@ -165,6 +169,12 @@ EVENT_TOL_S = 1e-7                # engineering choice: events located to 0.1 µ
 DEFAULT_TOLERANCE = 1e-3          # engineering choice: relative step tolerance (see convergence test)
 STEADY_MAX_CYCLES = 60            # engineering choice: give up looking for a periodic state after this
 STEADY_MAX_CYCLES_CORE = 240      # engineering choice: with iron cores, whose DC settles in ~1 s
+# Engineering choice: the lamp-out state is settled when the transient still to come is
+# below 1e-4 of each unknown's scale (5 mV on a timing capacitor's 50 V scale), or when
+# the change over a cycle is at the solver's own noise (a tenth of the relative
+# tolerance, as the absolute tolerances are set).
+OFF_SETTLE_TOL = 1e-4
+OFF_SETTLE_NOISE = 0.1
 
 # Typical efficacy used only to weight lamp groups when adding their light (common
 # practice, no source): filament ~12 lm/W, low-voltage halogen ~16 lm/W, LED ~90 lm/W.
@@ -306,6 +316,7 @@ def pack(circuit: Circuit, *, setting: float | None, firing_angle_deg: float | N
     P[K.TRAMP] = dim.turn_off_time_s if dim.edge is Edge.TRAILING else 0.0
     P[K.DIDTC] = dim.commutating_di_dt_a_per_s if dim.commutating_di_dt_a_per_s > 0 else np.inf
     P[K.TQ] = dim.triac_turn_off_time_s if dim.edge is Edge.LEADING else 0.0
+    P[K.SOFT] = dim.soft_start_s if dim.edge is Edge.TRAILING else 0.0
 
     gk, gxo, gpo, gnp, gn, chunks = [], [], [], [], [], []
     xo, po = K.N_CORE, 0
@@ -322,8 +333,10 @@ def pack(circuit: Circuit, *, setting: float | None, firing_angle_deg: float | N
         po += len(p)
         state_scale += _state_scales(ld, nx, sup)
     ny = xo
+    until_latched = dim.control is Control.PHASE and dim.gate_drive is GateDrive.UNTIL_LATCHED
     IP = np.array([0 if dim.edge is Edge.LEADING else 1, 0 if dim.control is Control.PHASE else 1,
-                   1 if no_firing else 0, len(loads), ny], dtype=np.int64)
+                   1 if no_firing else 0, len(loads), ny,
+                   K.UNTIL_LATCHED if until_latched else K.SINGLE_PULSE], dtype=np.int64)
     i_ref = max(sum(ld.count * ld.rated_power_w for ld in loads) / sup.voltage_v, 0.05)
     scale = np.array([i_ref, i_ref, sup.peak_v, sup.peak_v, sup.peak_v, 50.0, sup.peak_v] + state_scale)
     # absolute tolerances (engineering choice): a tenth of the tolerance of each unknown's
@@ -356,7 +369,7 @@ def _state_scales(ld, nx: int, sup) -> list[float]:
     return out
 
 
-def _cold_state(circuit: Circuit, pk: _Packed, t0: float) -> _State:
+def _cold_state(circuit: Circuit, pk: _Packed, t0: float, start_up: bool = False) -> _State:
     y = np.zeros(pk.ny)
     for g, ld in enumerate(circuit.all_loads):
         xo = int(pk.gxo[g])
@@ -369,6 +382,10 @@ def _cold_state(circuit: Circuit, pk: _Packed, t0: float) -> _State:
     q[K.T_FIRE] = np.inf
     q[K.T_OFF] = np.inf
     q[K.T_RAMP_END] = np.inf
+    # start_up: the supply appears at t0 and a phase controller starts at the first zero
+    # crossing; otherwise its control has long been running
+    half = math.pi / pk.P[K.OMEGA]
+    q[K.T_SYNC] = math.ceil(t0 / half - 1e-9) * half if start_up else -np.inf
     for g in range(len(pk.gk)):
         q[K.N_Q + 4 * g] = 1.0          # drivers start at full level until they have decoded a half-cycle
         q[K.N_Q + 4 * g + 1] = np.inf   # phase sense: no rising edge seen yet
@@ -492,9 +509,37 @@ def _check_args(setting, firing_angle_deg, cycles, samples_per_cycle) -> None:
         raise InputError(f"{samples_per_cycle!r} is outside 10–20000", key="samples_per_cycle")
 
 
+def _settled_off(pk: _Packed, st: _State, max_cycles: int) -> _State:
+    """The lamp-out periodic state: with nothing firing, power, angles and firings are all
+    zero and say nothing, so settling is judged on the state vector itself.  One cycle
+    at a time, the change of every unknown over the cycle, relative to its scale, is
+    watched; its ratio to the previous cycle's change r gives the transient's decay per
+    cycle, and the transient still to come is about change·r/(1 − r) (a geometric tail).
+    Settled when that is below OFF_SETTLE_TOL, or when the change over a cycle is at the
+    solver's noise (a drift that slow, such as a cold filament warming by a few hundredths
+    of a kelvin a cycle on the off-state current, matters to no check)."""
+    prev_y, prev_d = st.y, None
+    for _ in range(max_cycles):
+        _, _, st, _ = _run(pk, st, 1, 20)
+        d = float(np.max(np.abs(st.y - prev_y) / pk.scale))
+        if d <= OFF_SETTLE_NOISE * pk.P[K.RTOL]:
+            break
+        if prev_d is not None and prev_d > 0.0:
+            r = d / prev_d
+            if r < 1.0 and d * r / (1.0 - r) <= OFF_SETTLE_TOL:
+                break
+        prev_y, prev_d = st.y, d
+    return st
+
+
 def _steady(circuit: Circuit, pk: _Packed, t0: float, no_firing: bool) -> _State:
     """Run until the half-cycles repeat; return the state at a cycle boundary."""
     st = _cold_state(circuit, pk, t0)
+    cored = any(ld.kind is LoadKind.MAGNETIC_TRANSFORMER for ld in circuit.all_loads)
+    if no_firing:
+        # lamps out: filaments stay at ambient (the off-state current warms them by
+        # millikelvin), so the search starts from the cold state
+        return _settled_off(pk, st, STEADY_MAX_CYCLES_CORE if cored else STEADY_MAX_CYCLES)
     # start filaments hot so the thermal transient is short (engineering choice)
     y = st.y.copy()
     for g, ld in enumerate(circuit.all_loads):
@@ -506,7 +551,6 @@ def _steady(circuit: Circuit, pk: _Packed, t0: float, no_firing: bool) -> _State
     prev = None
     done = 0
     # an iron core's DC settles over tens of cycles (L_m/R); wait for it, more finely
-    cored = any(ld.kind is LoadKind.MAGNETIC_TRANSFORMER for ld in circuit.all_loads)
     max_cycles = STEADY_MAX_CYCLES_CORE if cored else STEADY_MAX_CYCLES
     dc_tol = 5e-5 if cored else 1e-3
     while done < max_cycles:
@@ -560,8 +604,8 @@ def simulate(circuit: Circuit, *, setting: float | None = None, firing_angle_deg
         state = start
     else:
         mode = Start(start)
-        if mode is Start.COLD:
-            state = _cold_state(circuit, pk, t0)
+        if mode in (Start.COLD, Start.SWITCH_ON):
+            state = _cold_state(circuit, pk, t0, start_up=mode is Start.SWITCH_ON)
         elif mode is Start.STEADY:
             state = _steady(circuit, pk, t0, no_firing)
         else:

@@ -157,8 +157,13 @@ def test_dc_offset_from_dc_voltage_and_peaks():
     sym = [run(0.5, hc=half_cycles(6, peak_line=1.0), load_v=sine)]
     r = ck.check_dc_offset(c, sym)
     assert r.status is Status.PASS and r.value == pytest.approx(0.0, abs=1e-9)
-    # 1 V DC: settles to 1/26.45 = 37.8 mA, five times the 7.4 mA headroom → saturation
-    off = [run(0.5, hc=half_cycles(6, peak_line=1.0), load_v=sine + 1.0)]
+    # 1 V DC imposed by the conduction windows: positive half-cycles conduct 90°–180°,
+    # negative ones from α₋ with V̂·(cos 90° − cos α₋)/2π = 1 V [derived: the mean of the
+    # supply sine over the windows]; settles to 1/26.45 = 37.8 mA, five times the 7.4 mA
+    # headroom → saturation.  (Until the DC was read from the conduction windows, this
+    # case put the 1 V on the load voltage itself.)
+    a_neg = math.degrees(math.acos(-2 * math.pi / c.supply.peak_v))
+    off = [run(0.5, hc=half_cycles(6, peak_line=1.0, firing=[90.0, a_neg] * 3), load_v=sine + 1.0)]
     r = ck.check_dc_offset(c, off)
     assert r.status is Status.FAIL and r.safety
     assert r.value == pytest.approx(1.0 / 26.45, rel=1e-3) and r.details["dc_voltage_v"] == pytest.approx(1.0)

@@ -15,7 +15,7 @@ import pytest
 
 from loads import catalogue, files
 from loads.circuit import LOAD_CLASSES, Circuit, Range
-from loads.dimmer import Dimmer
+from loads.dimmer import Dimmer, GateDrive
 from loads.driver import ElectronicDriver
 from loads.errors import InputError
 from loads.filament import Filament
@@ -105,7 +105,7 @@ def test_newline_in_a_quoted_key_stays_on_one_line():
 ALLOWED_SUFFIXES = ("_v", "_hz", "_w", "_va", "_a", "_ma", "_ohm", "_uh", "_mh", "_nf", "_uf", "_us", "_ms",
                     "_k", "_c", "_pct", "_deg", "_a2s")
 UNITLESS = {"name", "count", "gang", "fins_removed", "max_lamps", "edge", "wiring", "control", "curve",
-            "bleeder_kind", "dimmable", "low_end_trim", "rc_diac", "saturation_flux_ratio", "saturated_inductance_ratio"}
+            "bleeder_kind", "dimmable", "low_end_trim", "rc_diac", "gate_drive", "saturation_flux_ratio", "saturated_inductance_ratio"}
 
 
 def test_every_field_of_every_model_has_a_file_key_with_a_unit():
@@ -437,3 +437,17 @@ def test_triac_turn_off_time_round_trips_and_is_checked():
         files.parse_profile(bad, "p.toml")
     msg = str(e.value)
     assert "\n" not in msg and "p.toml" in msg and "triac_turn_off_time_us" in msg
+
+
+def test_gate_drive_and_soft_start_round_trip_and_bad_values_name_the_key():
+    d = Dimmer(name="x", control="phase", rc_diac=None, gate_drive="single-pulse", soft_start_s=0.12)
+    text = files.profile_to_toml(d)
+    assert 'gate_drive = "single-pulse"\n' in text and "soft_start_ms = 120.0\n" in text
+    back, _ = files.parse_profile(text)
+    assert back == d and back.gate_drive is GateDrive.SINGLE_PULSE
+    assert Dimmer().gate_drive is GateDrive.UNTIL_LATCHED and Dimmer().soft_start_s == 0.05
+    for bad, key in (('gate_drive = "held"', "gate_drive"), ("soft_start_ms = -5.0", "soft_start_ms")):
+        wrong = re.sub(r"^" + key + r" = .*$", bad, text, flags=re.M)
+        with pytest.raises(InputError) as info:
+            files.parse_profile(wrong, "p.toml")
+        assert key in str(info.value) and "\n" not in str(info.value)
