@@ -1,0 +1,117 @@
+"""The verdict corpus (issue 8): dimfit's verdict on everyday circuits against the trade.
+
+Each case is an invented everyday circuit in ``tests/data/corpus`` whose expected
+verdict and defensible alternatives were written down, with their basis, before dimfit
+was run on it (``tests/data/corpus/cases.toml``, the one place they are kept; the
+corpus README repeats them in a table).  The expectations are common practice of the
+trade and figures from memory, not published values, so these tests are not marked
+``published``: a failure here means dimfit disagrees with what installers expect.
+
+A case passes when the verdict is in its defensible set.  Cases whose verdict is not
+defensible on today's code are strict xfails naming the cause (an item of issue 8
+where one applies), so the marker flips when the model or criterion is fixed; cases
+that take over a minute today are skipped with the cause.  ``python -m
+tests.corpus_report`` prints the whole agreement table.
+"""
+import re
+
+import pytest
+
+from compat.evaluate import evaluate
+from loads.files import read_circuit
+from tests.corpus_report import CORPUS_DIR, VERDICTS, grade, load_cases
+
+CASES = load_cases()
+
+# Verdicts outside the defensible set on the code of 2 Dec 2026 (measured with
+# `python -m tests.corpus_report --messages`), each with its cause as far as the check
+# messages show.  Remove an entry when its case turns defensible (strict xfail fails then).
+NOT_DEFENSIBLE_TODAY = {
+    "fil-rcdiac-3x60w.toml": "item 7: flicker caution on a dimmed filament at 100 Hz (plus dimming-range caution: lowest steady light 15.6 %)",
+    "fil-le-neutral-100w.toml": "item 7: flicker caution on a dimmed filament at 100 Hz",
+    "fil-120v-rcdiac-2x60w.toml": "item 7: flicker caution on a dimmed filament at 120 Hz (plus dimming-range caution at 6.5 %)",
+    "hal-le-neutral-3x70w.toml": "item 7: flicker caution on dimmed mains halogen at 100 Hz",
+    "mt-le-neutral-4x60va.toml": "item 1: one polarity does not fire at full after the 1 ms gate window; dc-offset fails (36 V DC)",
+    "mt-rcdiac-sym-2x60va.toml": "item 1: dc-offset fails on a symmetric rotary dimmer (1.3 V DC at setting 0.10 against 0.18 V that saturates)",
+    "mt-120v-le-neutral-3x75va.toml": "item 1: one polarity does not fire at full after the gate window; dc-offset fails (18 V DC)",
+    "led-le-neutral-4x9w-bleeder.toml": "item 7: holding drops out 20-40 deg after every firing at full; lamps read a short phase (17 Hz flicker, <= 32 % light)",
+    "led-120v-le-neutral-6x9w-bleeder.toml": "item 7: holding drop-outs in every half-cycle at mid settings; 20 Hz flicker",
+    "led-le-2wire-phase-6x9w-bleeder.toml": "item 7: holding drop-outs in every half-cycle at full; 17 Hz flicker",
+    "led-nondimmable-le.toml": "item 4: a non-dimmable lamp on a dimmer is accepted with cautions",
+    "led-nondimmable-te.toml": "item 4: a non-dimmable lamp on a dimmer is accepted with cautions",
+    "led-te-2x5w-correction.toml": "item 6: minimum-load counts the fitted correction device's watts and fails",
+    "led-rcdiac-4x6w-correction.toml": "item 6: minimum-load fails with a correction device fitted; item 7: holding and 17 Hz flicker",
+    "drv-te-neutral-8x12w.toml": "item 9: current peaks at the trip level every half-cycle; turn-off-surge reaches the clamp at low settings",
+    "drv-le-neutral-6x12w.toml": "item 3: breaker 'may trip' on a 47 A switch-on peak (judged on the peak alone); holding drop-outs and 17 Hz flicker at low settings",
+    "drv-277v-te-neutral-8x20w.toml": "item 9: current peaks at the trip level every half-cycle; turn-off-surge reaches the clamp",
+    "brk-te-12x10w-b10.toml": "turn-off-surge reaches the clamp at low settings (bulk capacitors charging when the switch opens); 50 Hz flicker at setting 0",
+    "brk-te-15x10w-b10.toml": "turn-off-surge reaches the clamp at low settings (bulk capacitors charging when the switch opens); 67 Hz flicker at setting 0",
+    "brk-te-20x10w-c10.toml": "turn-off-surge reaches the clamp at low settings (bulk capacitors charging when the switch opens); flicker at setting 0",
+    "brk-te-30x10w-c10.toml": "item 9: peaks at the trip level every half-cycle; turn-off-surge at the clamp; flicker at setting 0",
+    "brk-le-12x10w-b10.toml": "item 3: breaker 'may trip' on a 60 A switch-on peak (judged on the peak alone); holding drop-outs and 33 Hz flicker at low settings",
+    "brk-le-30x10w-c10.toml": "item 3: breaker 'may trip', judged on the switch-on peak alone; holding drop-outs and flicker at low settings",
+    "mix-rcdiac-fil60-led3x6bleeder.toml": "item 7: 17 Hz flicker at setting 0.35 with a filament lamp on the circuit; holding chatter at full",
+}
+
+# Cases whose evaluation takes over a minute today (2 Dec 2026: 99 s and 135 s wall on
+# the shared 2-core machine): the electronic-transformer model is slow (issue 8 item 5).
+SLOW_TODAY = {
+    "et-te-2x60va.toml": "slow electronic-transformer model (99 s today, issue 8 item 5); verdict today not defensible: "
+                         "off-state 'flashes every 0.00 s' (light follows the instantaneous lamp power)",
+    "et-le-neutral-3x60va.toml": "slow electronic-transformer model (135 s today, issue 8 item 5)",
+}
+
+
+def _param(case):
+    marks = [pytest.mark.slow]
+    if case["file"] in SLOW_TODAY:
+        marks.append(pytest.mark.skip(reason=SLOW_TODAY[case["file"]]))
+    elif case["file"] in NOT_DEFENSIBLE_TODAY:
+        marks.append(pytest.mark.xfail(strict=True, reason=NOT_DEFENSIBLE_TODAY[case["file"]]))
+    return pytest.param(case, id=case["file"].removesuffix(".toml"), marks=marks)
+
+
+@pytest.mark.parametrize("case", [_param(c) for c in CASES])
+def test_corpus_verdict_is_defensible(case):
+    # common practice, no source / from memory: the expectation and its basis are in
+    # tests/data/corpus/cases.toml
+    report = evaluate(read_circuit(CORPUS_DIR / case["file"]))
+    got = str(report.verdict)
+    assert grade(case, got) != "disagree", (
+        f"{case['file']}: got {got}, defensible {case['defensible']}; failing "
+        f"{[c.id for c in report.checks if c.status == 'fail']}, cautions {[c.id for c in report.checks if c.status == 'caution']}")
+
+
+def test_corpus_has_the_circuits_issue_8_asks_for():
+    # issue 8, "What must be shown": at least 30 everyday circuits over these kinds of load,
+    # both edges, both wirings, 230 V 50 Hz and 120 V 60 Hz
+    assert len(CASES) >= 30
+    circuits = {c["file"]: read_circuit(CORPUS_DIR / c["file"]) for c in CASES}
+    kinds = {str(g.kind) for circ in circuits.values() for g in circ.loads}
+    assert kinds >= {"filament", "magnetic-transformer", "electronic-transformer", "electronic-driver"}
+    assert {str(c.dimmer.edge) for c in circuits.values()} == {"leading", "trailing"}
+    assert {str(c.dimmer.wiring) for c in circuits.values()} == {"two-wire", "with-neutral"}
+    assert {str(c.dimmer.control) for c in circuits.values()} == {"phase", "rc-diac"}
+    assert {(c.supply.voltage_v, c.supply.frequency_hz) for c in circuits.values()} >= {(230.0, 50.0), (120.0, 60.0)}
+    assert any(c.correction is not None for c in circuits.values())
+    assert any(not getattr(g, "dimmable", True) for c in circuits.values() for g in c.loads)
+    assert any(len({str(g.kind) for g in c.loads}) > 1 for c in circuits.values())          # mixed loads
+    assert all(set(c["defensible"]) <= set(VERDICTS) for c in CASES)
+    assert set(NOT_DEFENSIBLE_TODAY) | set(SLOW_TODAY) <= set(circuits)
+
+
+def _readme_table() -> dict[str, tuple[str, list[str]]]:
+    text = (CORPUS_DIR / "README.md").read_text(encoding="utf-8")
+    section = text.split("## Expected verdicts", 1)[1].split("\n## ", 1)[0]
+    rows = {}
+    for line in section.splitlines():
+        m = re.match(r"\| `([^`]+)` \| [^|]* \| ([a-z-]+) \| ([a-z, -]+) \|", line)
+        if m:
+            rows[m.group(1)] = (m.group(2), [v.strip() for v in m.group(3).split(",")])
+    return rows
+
+
+def test_corpus_readme_table_repeats_cases_toml():
+    # the README's table must say what cases.toml says (the one place of the expectations)
+    table = _readme_table()
+    assert table == {c["file"]: (c["expected"], list(c["defensible"])) for c in CASES}
