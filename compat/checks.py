@@ -317,7 +317,7 @@ def check_latching(circuit: Circuit, runs: Sequence[SettingRun], weights) -> Che
         return _na("latching", "No sweep was simulated.")
     il = circuit.dimmer.latching_current_a
     bottom = _end_of_travel(runs, weights)
-    worst, worst_peak, bad_in_range, bad_at_bottom = None, math.inf, [], []
+    worst, worst_peak, worst_failed, bad_in_range, bad_at_bottom = None, math.inf, False, [], []
     for r in runs:
         hc = r.half_cycles
         fired = np.isfinite(hc.firing_angle_deg)

@@ -6,7 +6,6 @@ check is run on a short sweep of the real simulator instead.
 """
 import dataclasses
 
-import numpy as np
 import pytest
 
 from compat import checks as ck

@@ -27,7 +27,7 @@ LAMP_100W_230V = Filament(rated_power_w=100.0, rated_voltage_v=230.0)  # default
 
 
 def _ids(lamps):
-    return [f"{l.rated_power_w:.0f}W-{l.rated_voltage_v:.0f}V-{l.operating_temperature_k:.0f}K" for l in lamps]
+    return [f"{lamp.rated_power_w:.0f}W-{lamp.rated_voltage_v:.0f}V-{lamp.operating_temperature_k:.0f}K" for lamp in lamps]
 
 
 # --- analytic -------------------------------------------------------------------
@@ -178,7 +178,7 @@ def _light(lamp, v):
 
 # The exponents of the straight-wire model depend only on the operating and ambient
 # temperatures (geometry scales out of d ln Q / d ln V), so two lamps per temperature suffice.
-EXPONENT_LAMPS = [l for l in GENERAL_SERVICE if (l.rated_power_w, l.rated_voltage_v) in ((100.0, 230.0), (25.0, 120.0))]
+EXPONENT_LAMPS = [lamp for lamp in GENERAL_SERVICE if (lamp.rated_power_w, lamp.rated_voltage_v) in ((100.0, 230.0), (25.0, 120.0))]
 
 
 @pytest.mark.published

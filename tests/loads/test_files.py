@@ -20,7 +20,6 @@ from loads.driver import ElectronicDriver
 from loads.errors import InputError
 from loads.filament import Filament
 from loads.linear import Linear
-from loads.load import LoadKind
 
 DATA = Path(__file__).resolve().parent.parent / "data"
 BAD = DATA / "bad"

@@ -25,7 +25,6 @@ import numpy as np
 import pytest
 
 from tests import ngspice as ng
-from tests.ngspice import ngspice_exe  # noqa: F401  (pytest fixture: skip / fail without ngspice)
 
 pytestmark = pytest.mark.reference_sim
 

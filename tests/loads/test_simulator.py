@@ -5,7 +5,6 @@ import math
 
 import numpy as np
 import pytest
-from scipy.integrate import quad
 from scipy.optimize import brentq
 
 from loads.circuit import Circuit
