@@ -1,4 +1,4 @@
-"""One function per check id of DESIGN §4.
+"""One function per check id (``CHECK_IDS``; what each judges: docs/design.md, Checks).
 
 Each takes the circuit and the part of the ``Evidence`` it needs and returns a
 ``CheckResult``: status, value, limit, unit, margin (fraction of the limit, positive

@@ -127,7 +127,7 @@ def _angles(values, fired) -> list[float | None]:
 
 
 def simulation_json(circuit, result, *, start: str) -> dict:
-    """The DESIGN §6 JSON of one simulation."""
+    """The ``simulate --json`` object of one simulation (docs/design.md, JSON output)."""
     import numpy as np
 
     hc = result.half_cycles
@@ -213,7 +213,7 @@ def cmd_simulate(args) -> int:
 # --------------------------------------------------------------------------- sweep
 
 def sweep_row(point) -> dict:
-    """One sweep point with the DESIGN §6 sweep keys (plus the switch's counters)."""
+    """One sweep point with the report's sweep keys (plus the switch's counters)."""
     return {"direction": point.direction, "setting": _finite(point.setting),
             "firing_angle_deg": _finite(point.firing_angle_deg),
             "conduction_angle_deg": _finite(point.conduction_angle_deg),

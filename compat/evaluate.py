@@ -235,7 +235,7 @@ def judge(ev: Evidence, *, breaker_counts: dict[str, int] | None = None) -> list
 
 
 def sweep_rows(ev: Evidence) -> tuple[dict, ...]:
-    """Report.sweep rows with the DESIGN §6 keys."""
+    """Report.sweep rows (their keys: ``SWEEP_KEYS``)."""
     rows = []
     for r in ev.runs:
         p = r.point
@@ -319,7 +319,7 @@ def combine(nominal: list[CheckResult], cases: list[tuple[str, list[CheckResult]
 def evaluate(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress: Callable[[int, int], None] | None = None,
              cancel: Event | None = None, simulator=None) -> Report:
     """Simulate and judge ``circuit``; the report carries every check, the dimming curve
-    (rows with the DESIGN §6 keys) and the safety cautions."""
+    (rows with the ``SWEEP_KEYS``) and the safety cautions."""
     sim = simulator or default_simulator()
     base = dataclasses.replace(circuit, ranges=())
     n_cases = 1 + 2 * len(circuit.ranges)

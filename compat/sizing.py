@@ -1,4 +1,4 @@
-"""Remedies found by searching the simulation (DESIGN §4, remedies and sizing).
+"""Remedies found by searching the simulation (docs/design.md, Remedies and sizing).
 
 * lamp counts: for each group, the fewest and the most units that pass, by bisection
   on the count — the checks that fail with too few lamps (minimum load, latching,

@@ -1,6 +1,6 @@
 """The dimfit command line: bad input gives one line and exit 2, never a traceback.
 
-Behaviour tests of our own interface (DESIGN §6); the one physics check (the textbook
+Behaviour tests of our own interface (docs/design.md, Commands); the one physics check (the textbook
 resistive example through ``dimfit simulate``) is marked ``published``.
 """
 from __future__ import annotations

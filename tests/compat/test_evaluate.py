@@ -1,4 +1,4 @@
-"""The orchestrator: progress, cancel, sweep rows (DESIGN §6 keys), reuse of runs."""
+"""The orchestrator: progress, cancel, sweep rows (``SWEEP_KEYS``), reuse of runs."""
 import threading
 
 import pytest

@@ -1,6 +1,6 @@
 """Circuit and profile files: strict reading, exact round trip, atomic writes.
 
-These are file-format tests (our own behaviour, DESIGN §5), not physics: no outside
+These are file-format tests (our own behaviour, docs/design.md, Files), not physics: no outside
 reference is involved, so they carry no published/reference_sim/analytic marker.
 """
 from __future__ import annotations
