@@ -1,4 +1,4 @@
-"""Safety cautions carried by every verdict (DESIGN §4), in this project's own words."""
+"""Safety cautions carried by every verdict, in this project's own words."""
 from __future__ import annotations
 
 CAUTIONS: tuple[str, ...] = (

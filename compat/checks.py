@@ -1,4 +1,4 @@
-"""One function per check id of DESIGN §4.
+"""One function per check id (``CHECK_IDS``; what each judges: docs/design.md, Checks).
 
 Each takes the circuit and the part of the ``Evidence`` it needs and returns a
 ``CheckResult``: status, value, limit, unit, margin (fraction of the limit, positive
@@ -339,7 +339,7 @@ def check_latching(circuit: Circuit, runs: Sequence[SettingRun], weights) -> Che
         return _na("latching", "No sweep was simulated.")
     il = circuit.dimmer.latching_current_a
     bottom = _end_of_travel(runs, weights)
-    worst, worst_peak, bad_in_range, bad_at_bottom = None, math.inf, [], []
+    worst, worst_peak, worst_failed, bad_in_range, bad_at_bottom = None, math.inf, False, [], []
     for r in runs:
         hc = r.half_cycles
         fired = np.isfinite(hc.firing_angle_deg)

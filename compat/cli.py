@@ -1,7 +1,5 @@
-"""The ``dimfit`` console command (DESIGN §6).
+"""The ``dimfit`` commands that need no terminal app (docs/design.md, "Commands").
 
-    dimfit                       the terminal app on the built-in demo circuit
-    dimfit open FILE             the terminal app on a circuit file
     dimfit check FILE [--json | --markdown]
     dimfit simulate FILE [--setting S | --firing-angle DEG] [--cycles N]
                          [--from cold|steady] [--json | --csv]
@@ -12,9 +10,14 @@
 
 Exit codes: 0 done (``check``: suitable, cautions allowed); 1 ``check`` found the
 circuit unsuitable or a site test needed; 2 bad input (one line on stderr, never a
-traceback).  Heavy modules (the simulator, the checks, the terminal app) are imported
-inside the command that needs them, so ``dimfit catalogue`` and bad-input errors are
-quick.  Progress goes to stderr, and only when stderr is a terminal.
+traceback).  Heavy modules (the simulator, the checks) are imported inside the command
+that needs them, so ``dimfit catalogue`` and bad-input errors are quick.  Progress goes
+to stderr, and only when stderr is a terminal.
+
+The installed ``dimfit`` command is ``tui.cli.main``: it passes ``open_app`` to ``main``
+here, which adds ``dimfit`` (no command) and ``dimfit open FILE``.  This module never
+imports ``tui`` (the layers are tui -> compat -> loads); ``python -m compat.cli`` runs
+every command but those two.
 """
 from __future__ import annotations
 
@@ -25,7 +28,7 @@ import json
 import math
 import sys
 import tomllib
-from typing import Sequence
+from collections.abc import Callable, Sequence
 
 from loads.errors import InputError
 
@@ -124,7 +127,7 @@ def _angles(values, fired) -> list[float | None]:
 
 
 def simulation_json(circuit, result, *, start: str) -> dict:
-    """The DESIGN §6 JSON of one simulation."""
+    """The ``simulate --json`` object of one simulation (docs/design.md, JSON output)."""
     import numpy as np
 
     hc = result.half_cycles
@@ -210,7 +213,7 @@ def cmd_simulate(args) -> int:
 # --------------------------------------------------------------------------- sweep
 
 def sweep_row(point) -> dict:
-    """One sweep point with the DESIGN §6 sweep keys (plus the switch's counters)."""
+    """One sweep point with the report's sweep keys (plus the switch's counters)."""
     return {"direction": point.direction, "setting": _finite(point.setting),
             "firing_angle_deg": _finite(point.firing_angle_deg),
             "conduction_angle_deg": _finite(point.conduction_angle_deg),
@@ -306,29 +309,31 @@ def cmd_catalogue(args) -> int:
     return 0
 
 
-# ------------------------------------------------------------------------ open/tui
+# ------------------------------------------------------------------------ open
 
-def cmd_open(args) -> int:
-    path = getattr(args, "file", None)
-    if path is not None:
-        _read(path)                      # bad input: one line, exit 2, before the app starts
-    try:
-        from tui.app import run
-    except ImportError as err:
-        return _fail(f"the terminal app is not available in this installation ({err})")
-    result = run(path)
-    return result if isinstance(result, int) else 0
+def _open_command(open_app: Callable[[str | None], int | None]) -> Callable[[argparse.Namespace], int]:
+    """``dimfit open FILE`` (and ``dimfit`` alone) with the app the caller supplies:
+    ``open_app(path)`` runs it (None: the demo circuit) and returns an exit code or None."""
+    def cmd_open(args) -> int:
+        path = getattr(args, "file", None)
+        if path is not None:
+            _read(path)                  # bad input: one line, exit 2, before the app starts
+        result = open_app(path)
+        return result if isinstance(result, int) else 0
+    return cmd_open
 
 
 # ---------------------------------------------------------------------------- main
 
-def build_parser() -> argparse.ArgumentParser:
+def build_parser(open_app: Callable[[str | None], int | None] | None = None) -> argparse.ArgumentParser:
+    """The command line; with ``open_app``, also ``open FILE`` (see ``_open_command``)."""
     parser = _Parser(prog=PROG, description="Will this phase-cut dimmer work, safely, with these lamps?")
     sub = parser.add_subparsers(dest="command", parser_class=_Parser)
 
-    p = sub.add_parser("open", help="open the terminal app on a circuit file")
-    p.add_argument("file")
-    p.set_defaults(func=cmd_open)
+    if open_app is not None:
+        p = sub.add_parser("open", help="open the terminal app on a circuit file")
+        p.add_argument("file")
+        p.set_defaults(func=_open_command(open_app))
 
     p = sub.add_parser("check", help="run all checks on a circuit file")
     p.add_argument("file")
@@ -372,13 +377,16 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
-def main(argv: Sequence[str] | None = None) -> int:
-    """Run the command line; returns the exit code."""
-    parser = build_parser()
+def main(argv: Sequence[str] | None = None, *, open_app: Callable[[str | None], int | None] | None = None) -> int:
+    """Run the command line; returns the exit code.  ``open_app``: see ``_open_command``
+    (without it, ``open`` is not a command and a command is required)."""
+    parser = build_parser(open_app)
     try:
         args = parser.parse_args(argv)
         if args.command is None:
-            return cmd_open(argparse.Namespace(file=None))
+            if open_app is None:
+                raise UsageError("a command is required")
+            return _open_command(open_app)(argparse.Namespace(file=None))
         return args.func(args)
     except UsageError as err:
         return _fail(f"{err} (see {PROG} --help)")

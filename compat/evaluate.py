@@ -12,7 +12,6 @@ deciding input and the verdict becomes ``site-test-needed``.
 from __future__ import annotations
 
 import dataclasses
-import math
 import re
 from collections.abc import Callable
 from concurrent.futures import ThreadPoolExecutor
@@ -22,10 +21,10 @@ import numpy as np
 
 from compat import checks as ck
 from compat.report import CheckResult, Report, Status
-from compat.runs import Evidence, SettingRun
+from compat.runs import Cancelled, Evidence, SettingRun
+from compat.switch_on import INRUSH_ANGLES_DEG, breaker_max_counts, default_simulator, switch_on_runs
 from compat.verdict import attached_cautions, overall
 from loads.circuit import Circuit
-from loads.dimmer import Edge
 from loads.errors import InputError
 
 MIN_SETTINGS = 21                  # brief: at least 21 settings per direction
@@ -34,10 +33,6 @@ MIN_SETTINGS = 21                  # brief: at least 21 settings per direction
 CYCLES_PER_POINT = 6
 ANALYSED_CYCLES = 3
 SWEEP_SAMPLES_PER_CYCLE = 200
-# Engineering choice: switch-on angles 0–180° in 30° steps (the other half-cycle mirrors).
-INRUSH_ANGLES_DEG = (0.0, 30.0, 60.0, 90.0, 120.0, 150.0, 180.0)
-INRUSH_CYCLES = 2
-INRUSH_SAMPLES_PER_CYCLE = 200
 # Engineering choice: one second at 50 Hz off-state, the first fifth discarded as the
 # cold-start transient; long enough to see a bus that charges and flashes a few times
 # a second.  Slower flashes are reported as "at least once" or missed.
@@ -55,15 +50,6 @@ RANGE_MODE = "one-at-a-time"
 
 SWEEP_KEYS = ("direction", "setting", "firing_angle_deg", "conduction_angle_deg", "load_rms_v", "load_rms_a",
               "power_w", "light_fraction", "stable")
-
-
-class Cancelled(Exception):
-    """The caller's cancel event was set during an evaluation."""
-
-
-def _default_simulator():
-    from loads import simulation
-    return simulation
 
 
 def settings_grid(n: int) -> list[float]:
@@ -91,50 +77,11 @@ def walk(circuit: Circuit, settings: list[float], direction: str, sim, *, tick=N
     return tuple(runs)
 
 
-def switch_on_cycles(circuit: Circuit) -> int:
-    """Cycles a switch-on run covers: INRUSH_CYCLES after a trailing-edge soft start has
-    brought the conduction to its set value."""
-    d = circuit.dimmer
-    soft = d.soft_start_s if d.edge is Edge.TRAILING else 0.0
-    return INRUSH_CYCLES + math.ceil(soft * circuit.supply.frequency_hz - 1e-9)
-
-
-def switch_on_runs(circuit: Circuit, sim, *, tick=None, cancel=None) -> tuple:
-    """Switch-on at setting 1 across the switch-on angle, the supply appearing at that
-    angle on the circuit at rest and the dimmer starting up as it does (a phase
-    controller waits for the first zero crossing; a trailing-edge dimmer closes there,
-    with its soft start; a trigger diode fires when its empty timing capacitor first
-    reaches breakover): ((angle [deg], result), ...)."""
-    out = []
-    cycles = switch_on_cycles(circuit)
-    for a in INRUSH_ANGLES_DEG:
-        if cancel is not None and cancel.is_set():
-            raise Cancelled()
-        out.append((a, sim.simulate(circuit, setting=1.0, cycles=cycles, start="switch-on", switch_on_deg=a,
-                                    samples_per_cycle=INRUSH_SAMPLES_PER_CYCLE)))
-        if tick:
-            tick()
-    return tuple(out)
-
-
-def switch_on_peak_a(circuit: Circuit, sim=None) -> float:
-    """Worst whole-circuit switch-on line-current peak over the switch-on angles [A]."""
-    sim = sim or _default_simulator()
-    return max(float(np.max(r.half_cycles.peak_line_current_a)) for _, r in switch_on_runs(circuit, sim))
-
-
-def switch_on_surge(circuit: Circuit, sim=None):
-    """The switch-on run hardest on the circuit's breaker: (angle [deg],
-    ``breaker_band.SurgeJudgement``); the circuit must have a breaker."""
-    sim = sim or _default_simulator()
-    return ck.worst_surge(circuit, switch_on_runs(circuit, sim))
-
-
 def gather(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress=None, cancel=None, simulator=None) -> Evidence:
     """Every simulation the checks need, for one circuit (no ranges), sweeping
     ``settings`` points each way (``evaluate`` never asks for fewer than MIN_SETTINGS;
     the sizing search may)."""
-    sim = simulator or _default_simulator()
+    sim = simulator or default_simulator()
     grid = settings_grid(settings)
     total = 2 * len(grid) + len(INRUSH_ANGLES_DEG) + 1
     done = [0]
@@ -289,7 +236,7 @@ def judge(ev: Evidence, *, breaker_counts: dict[str, int] | None = None) -> list
 
 
 def sweep_rows(ev: Evidence) -> tuple[dict, ...]:
-    """Report.sweep rows with the DESIGN §6 keys."""
+    """Report.sweep rows (their keys: ``SWEEP_KEYS``)."""
     rows = []
     for r in ev.runs:
         p = r.point
@@ -373,8 +320,8 @@ def combine(nominal: list[CheckResult], cases: list[tuple[str, list[CheckResult]
 def evaluate(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress: Callable[[int, int], None] | None = None,
              cancel: Event | None = None, simulator=None) -> Report:
     """Simulate and judge ``circuit``; the report carries every check, the dimming curve
-    (rows with the DESIGN §6 keys) and the safety cautions."""
-    sim = simulator or _default_simulator()
+    (rows with the ``SWEEP_KEYS``) and the safety cautions."""
+    sim = simulator or default_simulator()
     base = dataclasses.replace(circuit, ranges=())
     n_cases = 1 + 2 * len(circuit.ranges)
     per_case = 2 * max(int(settings), MIN_SETTINGS) + len(INRUSH_ANGLES_DEG) + 1
@@ -403,7 +350,6 @@ def _judge_with_breaker(ev: Evidence, sim) -> list[CheckResult]:
     res = judge(ev)
     b = next(r for r in res if r.id == "breaker")
     if b.status is Status.FAIL:
-        from compat.sizing import breaker_max_counts
         counts = breaker_max_counts(ev.circuit, simulator=sim)
         res = [ck.check_breaker(ev.circuit, ev.inrush, counts) if r.id == "breaker" else r for r in res]
     return res

@@ -10,7 +10,7 @@ Risk bands, IEEE Std 1789-2015 recommended practice (IEEE1789_2015, from memory,
 unverified): low risk when the modulation % is below 0.025·f under 90 Hz and below
 0.08·f from 90 to 1250 Hz (no limit above 1250 Hz); no observable effect below
 0.0333·f from 90 to 3000 Hz (no limit above 3000 Hz) and, under 90 Hz, below 0.01·f
-(that last figure is not in REFERENCES: from memory, unverified).
+(that last figure from memory, unverified).
 
 Stroboscopic visibility measure SVM, CIE TN 006:2016 (CIE_TN006_2016; the formula and
 constants from memory, unverified against the printed note — a public summary confirms
@@ -83,7 +83,7 @@ def ieee1789_low_risk_pct(frequency_hz: float) -> float:
 
 def ieee1789_no_effect_pct(frequency_hz: float) -> float:
     """IEEE 1789 no-observable-effect modulation limit [%] (IEEE1789_2015, from memory;
-    the under-90 Hz line 0.01·f is from memory and not in REFERENCES)."""
+    the under-90 Hz line 0.01·f is from memory, unverified)."""
     f = frequency_hz
     if f < 90.0:
         return 0.01 * f

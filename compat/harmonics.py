@@ -86,7 +86,7 @@ def harmonic_rms_a(samples: np.ndarray, cycles: int) -> np.ndarray:
 def chopped_sine_harmonic_rms(order: int, firing_angle_deg: float, peak_a: float) -> float:
     """Closed-form rms of harmonic ``order`` of a phase-cut sine: a resistive load whose
     current is peak_a·sin θ for α < θ < π in each half-cycle (and the mirror image),
-    from its Fourier series [derived; REFERENCES, AC voltage controllers] [A].
+    from its Fourier series [derived; RASHID4, AC voltage controllers] [A].
     Even orders vanish by half-wave symmetry.  Trailing edge gives the same magnitudes."""
     if order % 2 == 0:
         return 0.0

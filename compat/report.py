@@ -1,7 +1,8 @@
 """What a check of a circuit produces: one result per check, a verdict, cautions.
 
 These are plain, immutable records so that the command line, the Markdown report and
-the terminal app all show the same thing.  JSON keys follow DESIGN §6 and are stable.
+the terminal app all show the same thing.  The JSON keys are stable (docs/design.md,
+JSON output).
 """
 from __future__ import annotations
 
@@ -25,7 +26,7 @@ class Verdict(StrEnum):
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class CheckResult:
-    """id: stable check id (DESIGN §4); value/limit in ``unit``; margin: how far inside
+    """id: stable check id (``compat.checks.CHECK_IDS``); value/limit in ``unit``; margin: how far inside
     the limit, as a fraction of the limit (positive passes, negative fails; None where
     it has no meaning); message: one sentence for a practitioner; remedy: what to change
     (None if nothing); sources: bibliography keys behind the criterion; deciding_input:
@@ -58,7 +59,7 @@ class Report:
     circuit: str
     verdict: Verdict
     checks: tuple[CheckResult, ...]
-    sweep: tuple[dict, ...] = ()          # rows with the DESIGN §6 sweep keys
+    sweep: tuple[dict, ...] = ()          # rows with the sweep keys (compat.evaluate.sweep_rows)
     cautions: tuple[str, ...] = ()
 
     def to_json(self) -> dict:

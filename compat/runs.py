@@ -16,6 +16,10 @@ from loads.circuit import Circuit
 from loads.simulation import HalfCycles, SimResult, SweepPoint
 
 
+class Cancelled(Exception):
+    """The caller's cancel event was set during an evaluation."""
+
+
 def samples_per_cycle(result: SimResult) -> int:
     """Samples per mains cycle of a result's uniform grid [1]."""
     if result.t_s.size < 2:

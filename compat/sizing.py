@@ -1,4 +1,4 @@
-"""Remedies found by searching the simulation (DESIGN §4, remedies and sizing).
+"""Remedies found by searching the simulation (docs/design.md, Remedies and sizing).
 
 * lamp counts: for each group, the fewest and the most units that pass, by bisection
   on the count — the checks that fail with too few lamps (minimum load, latching,
@@ -22,8 +22,10 @@ import math
 import numpy as np
 
 from compat import breaker_band, derating
-from compat.evaluate import evaluate, gather, judge, switch_on_peak_a, switch_on_surge
+from compat.evaluate import evaluate, gather, judge
 from compat.report import Status, Verdict
+from compat.switch_on import (MAX_COUNT, breaker_max_counts, max_passing, min_passing, switch_on_peak_a,
+                               switch_on_surge, with_count)
 from loads.circuit import Circuit
 from loads.dimmer import Control, Dimmer, Edge
 from loads.linear import Linear
@@ -33,7 +35,6 @@ from loads.linear import Linear
 SEARCH_SETTINGS = 11
 LOW_SIDE = ("minimum-load", "latching", "holding", "off-state", "dimming-range", "flicker")
 HIGH_SIDE = ("rating", "repetitive-peak", "inrush", "breaker", "harmonics", "dissipation")
-MAX_COUNT = 500                           # loads.load: count is 1–500
 # Correction device (engineering choice): the smallest resistor limits the spike each
 # time the switch fires into the capacitor to about 1 A at the mains peak; the
 # capacitance is searched between 10 nF and 10 µF.
@@ -50,76 +51,18 @@ def _failing(circuit: Circuit, ids, simulator=None, settings=SEARCH_SETTINGS) ->
     return [r.id for r in judge(ev) if r.status is Status.FAIL and r.id in ids]
 
 
-def _with_count(circuit: Circuit, index: int, n: int) -> Circuit:
-    loads = list(circuit.loads)
-    loads[index] = dataclasses.replace(loads[index], count=int(n))
-    return dataclasses.replace(circuit, loads=tuple(loads), ranges=())
-
-
-def _max_passing(ok, lo: int, hi: int) -> int:
-    """Largest n in [lo, hi] with ok(n), given ok is true then false; lo-1 if none."""
-    if not ok(lo):
-        return lo - 1
-    good, n = lo, lo
-    while True:                        # grow until it fails or hits hi
-        n = min(hi, 2 * n)
-        if not ok(n):
-            bad = n
-            break
-        good = n
-        if n == hi:
-            return hi
-    return _boundary(ok, good, bad)
-
-
-def _min_passing(ok, lo: int, hi: int) -> int | None:
-    """Smallest n in [lo, hi] with ok(n), given ok is false then true; None if none."""
-    if not ok(hi):
-        return None
-    if ok(lo):
-        return lo
-    return _boundary(ok, hi, lo)
-
-
-def _boundary(ok, good: int, bad: int) -> int:
-    """Bisect between a passing count and a failing one (either order); the passing
-    count next to the boundary."""
-    while abs(bad - good) > 1:
-        mid = (good + bad) // 2
-        if ok(mid):
-            good = mid
-        else:
-            bad = mid
-    return good
-
-
-def breaker_max_counts(circuit: Circuit, simulator=None) -> dict[str, int]:
-    """For each lamp group, the most units (others unchanged) whose worst switch-on
-    surge the breaker is expected to hold (IEC60898_1 band, judged by peak and
-    half-cycle I²t, see ``compat.breaker_band``)."""
-    b = circuit.breaker
-    if b is None:
-        return {}
-    out = {}
-    for i, g in enumerate(circuit.loads):
-        def ok(n, i=i):
-            return breaker_band.holds(switch_on_surge(_with_count(circuit, i, n), simulator)[1].zone)
-        out[g.name] = _max_passing(ok, 1, MAX_COUNT)
-    return out
-
-
 def count_limits(circuit: Circuit, simulator=None, progress=None) -> dict[str, dict]:
     """Fewest and most units of each group that pass, the other groups unchanged."""
     out = {}
     for i, g in enumerate(circuit.loads):
         def low_ok(n, i=i):
-            return not _failing(_with_count(circuit, i, n), LOW_SIDE, simulator)
+            return not _failing(with_count(circuit, i, n), LOW_SIDE, simulator)
 
         def high_ok(n, i=i):
-            return not _failing(_with_count(circuit, i, n), HIGH_SIDE, simulator)
+            return not _failing(with_count(circuit, i, n), HIGH_SIDE, simulator)
 
-        most = _max_passing(high_ok, 1, MAX_COUNT)
-        fewest = _min_passing(low_ok, 1, max(most, 1)) if most >= 1 else None
+        most = max_passing(high_ok, 1, MAX_COUNT)
+        fewest = min_passing(low_ok, 1, max(most, 1)) if most >= 1 else None
         out[g.name] = {"count": g.count, "fewest": fewest, "most": most if most >= 1 else None,
                        "passes": fewest is not None and most >= 1 and fewest <= most}
         if progress:

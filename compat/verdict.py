@@ -1,4 +1,4 @@
-"""The overall verdict from the checks (DESIGN §4), with the cautions always attached.
+"""The overall verdict from the checks, with the cautions always attached.
 
 * any check fails in every case considered → ``unsuitable``;
 * otherwise, a check that fails only at some ends of an input given as a range (its
@@ -25,5 +25,5 @@ def overall(checks: Sequence[CheckResult]) -> Verdict:
 
 
 def attached_cautions() -> tuple[str, ...]:
-    """The safety cautions every verdict carries (RULES: always attached)."""
+    """The safety cautions every verdict carries (always attached, whatever the verdict)."""
     return cautions()

@@ -94,8 +94,8 @@ class RcDiac:
     fixed_resistance_ohm: float = 3300.0      # common practice, no source (a few kΩ end stop)
     variable_resistance_ohm: float = 250e3    # common practice, no source (250–500 kΩ pots)
     timing_capacitance_f: float = 100e-9      # common practice, no source
-    breakover_v: float = 32.0                 # REFERENCES: trigger diodes 28–36 V [trade]
-    snapback_v: float = 10.0                  # REFERENCES: snap-back of several volts [trade]
+    breakover_v: float = 32.0                 # TRADE: trigger diodes 28–36 V (common practice)
+    snapback_v: float = 10.0                  # TRADE: snap-back of several volts (common practice)
     asymmetry_v: float = 0.0
     gate_resistance_ohm: float = 50.0         # engineering choice: gate–MT1 seen as ~50 Ω (as the ngspice reference)
     diac_off_current_a: float = 1e-3          # engineering choice: as the ngspice reference case
@@ -130,8 +130,8 @@ class Dimmer:
     fins_removed: int = 0
     ambient_temperature_c: float = 25.0
     # switching device (leading edge)
-    holding_current_a: float = 0.025          # REFERENCES: 5–50 mA [trade]
-    latching_current_a: float = 0.050         # REFERENCES: latching 1.5–3× holding [mem]
+    holding_current_a: float = 0.025          # TRADE: wall-dimmer triacs 5–50 mA (common practice)
+    latching_current_a: float = 0.050         # TEXTBOOK_TRIAC: latching 1.5–3× holding (from memory)
     gate_trigger_current_a: float = 0.010     # common practice, no source (sensitive-gate triacs 5–35 mA)
     gate_window_s: float = 100e-6             # engineering choice: a short pulse train from a phase controller
     gate_drive: GateDrive = GateDrive.UNTIL_LATCHED   # common practice, no source: controllers for inductive
@@ -146,7 +146,7 @@ class Dimmer:
     triac_turn_off_time_s: float = 20e-6      # common practice, from memory: a triac's commutated turn-off
                                               # time t_q is some tens of µs; a dip below I_H shorter than it
                                               # does not turn the triac off (0: it turns off at once)
-    choke_inductance_h: float = 60e-6         # REFERENCES: 40–100 µH chokes [trade]
+    choke_inductance_h: float = 60e-6         # TRADE: 40–100 µH chokes (common practice)
     snubber_capacitance_f: float = 0.0
     snubber_resistance_ohm: float = 100.0     # common practice, no source
     self_supply_a: float = 0.0                # two-wire electronic dimmers: a few mA [trade]

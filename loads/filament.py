@@ -19,7 +19,7 @@ from loads.errors import InputError, ModelRangeWarning, require
 from loads.load import LoadGroup, LoadKind
 from loads.tungsten import emissivity, resistivity_ohm_m, specific_heat_j_kg_k
 
-# REFERENCES: general-service filaments run at about 2700–2900 K [mem].
+# General-service filaments run at about 2700–2900 K (from memory).
 DEFAULT_OPERATING_TEMPERATURE_K = 2800.0
 
 

@@ -1,4 +1,4 @@
-"""Circuit files and profile files: strict reading, exact writing (DESIGN §5).
+"""Circuit files and profile files: strict reading, exact writing (docs/design.md, Files).
 
 Files are TOML, read with :mod:`tomllib` and written with :mod:`tomli_w`.  Inside the
 code every quantity is SI; in the files a practitioner's unit is part of the key name

@@ -6,8 +6,8 @@ entry, so the app can show the source behind any figure.
 
 ``note`` is honest about provenance: an entry whose details (or whose figures used
 here) were recalled rather than read from the source says "from memory, unverified".
-Figures tagged [pub] in the project's reference notes were transcribed from the
-source; they are not re-derived here.
+Figures said to be transcribed were copied from the printed source by the project;
+they are not re-derived here.
 """
 from __future__ import annotations
 
@@ -50,7 +50,7 @@ SOURCES: dict[str, Source] = {
         year=2014,
         locator="Example 11.1 (single-phase full-wave controller, resistive load: "
                 "120 V, 60 Hz, R = 10 ohm, alpha = 90 deg)",
-        note="printed results as transcribed in the project's reference notes; "
+        note="printed results as transcribed by the project from the book; "
              "publisher and year from memory, unverified",
     ),
     "RASHID4_EX11_2": Source(
@@ -60,7 +60,7 @@ SOURCES: dict[str, Source] = {
         year=2014,
         locator="Example 11.2 (single-phase full-wave controller, R-L load: "
                 "120 V, 60 Hz, R = 2.5 ohm, L = 6.5 mH, alpha = 90 deg)",
-        note="printed results as transcribed in the project's reference notes; a printed "
+        note="printed results as transcribed by the project from the book; a printed "
              "rms output voltage that differs from the waveform's is reported as an "
              "erratum; publisher and year from memory, unverified",
     ),
@@ -79,7 +79,7 @@ SOURCES: dict[str, Source] = {
         year=1925,
         locator="p. 146 ff.; resistivity of tungsten 300-3600 K as tabulated in the "
                 "CRC Handbook of Chemistry and Physics",
-        note="values used as transcribed in the project's reference notes from the CRC "
+        note="values used as transcribed by the project from the CRC "
              "Handbook tabulation; the article title and the handbook edition from "
              "memory, unverified",
     ),
@@ -91,7 +91,7 @@ SOURCES: dict[str, Source] = {
         year=2017,
         locator="pp. 42-57; fits for solid tungsten: electrical resistivity, total "
                 "hemispherical emissivity, isobaric heat capacity, density",
-        note="coefficients as transcribed in the project's reference notes; the paper "
+        note="coefficients as transcribed by the project from the paper; the paper "
              "was not re-read for this code",
     ),
     "WHITE_MINGES_1997": Source(
@@ -151,7 +151,7 @@ SOURCES: dict[str, Source] = {
                 "efficacy, life against voltage); definitions of percent flicker and "
                 "flicker index",
         note="lamp-law exponents from memory, unverified; flicker definitions as "
-             "transcribed in the project's reference notes",
+             "transcribed by the project",
     ),
     "IEEE1789_2015": Source(
         authors="IEEE",

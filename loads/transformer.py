@@ -68,7 +68,7 @@ import numpy as np  # noqa: E402
 from loads import filament as _fil  # noqa: E402
 from loads.filament import Filament  # noqa: E402
 
-# LV halogen capsules run hotter than general-service lamps: REFERENCES, halogen 2900–3200 K [mem].
+# LV halogen capsules run hotter than general-service lamps: halogen 2900–3200 K (from memory).
 LAMP_OPERATING_TEMPERATURE_K = 3000.0
 
 _RW, _LS, _LM, _LSAT, _LK, _RC, _N2 = range(7)

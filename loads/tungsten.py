@@ -17,8 +17,8 @@ Equations (T in K; sources by key, see ``loads.sources``):
 - Density 19250 kg/m³ (TOLIAS_2017, at 293 K), held constant: the filament's mass
   does not change with temperature, and thermal expansion of the geometry is not
   modelled.
-- Melting point 3695 K (handbook value, see REFERENCES: "Melting point 3695 K [pub,
-  handbook]").
+- Melting point 3695 K (a handbook value, transcribed from a printed handbook table;
+  not re-checked here).
 
 The measured resistivity table of FORSYTHE_WORTHING_1925 (as tabulated in the CRC
 Handbook) is kept as data, ``FORSYTHE_WORTHING_RESISTIVITY``, to check the fit against.
@@ -51,7 +51,7 @@ FORSYTHE_WORTHING_RESISTIVITY = np.array([
 UOHM_CM_TO_OHM_M = 1e-8                # definition of the units
 MOLAR_MASS_KG_MOL = 183.84e-3          # TOLIAS_2017 (standard atomic weight of W)
 DENSITY_KG_M3 = 19250.0                # TOLIAS_2017, at 293 K
-MELTING_POINT_K = 3695.0               # handbook value (REFERENCES.md, tungsten section)
+MELTING_POINT_K = 3695.0               # handbook value (transcribed from a printed table)
 FIT_MIN_K = 300.0                      # TOLIAS_2017: lower end of the solid-phase fits
 HEAT_CAPACITY_FIT_MAX_K = 3080.0       # TOLIAS_2017: upper end of the c_p fit
 

@@ -12,7 +12,7 @@ run on this machine:
   median of ``--repeats`` calls made after one warm-up call, so numba's compilation
   (seconds, cached on disk afterwards) is not counted;
 * ngspice: its own "Total analysis time" (from ``rusage``) for the same circuit and span
-  at the converged step of the shared step studies, median of ``--repeats`` runs; this
+  at the converged step of the step studies (``tests/data/spice/README.md``), median of ``--repeats`` runs; this
   excludes process start-up and parsing, and the wrdata output (the process wall time
   is printed beside it);
 * the ratio ngspice analysis / ours (above 1: ours is faster).
@@ -25,8 +25,8 @@ simulating that span of case (c) — the reference circuit closest to the demo c
 (same 230 V / 50 Hz supply and line impedance, capacitor-input lamps; the demo also has
 a halogen lamp and an rc-diac dimmer, which ngspice is not asked to simulate here).
 
-No timing is asserted anywhere; numbers on a shared 2-core machine vary by ±30 %
-(/work/shared/ngspice/README.md).
+No timing is asserted anywhere; numbers on a 2-core machine shared with other work vary
+by ±30 % (``tests/data/spice/README.md``, "Timing noise").
 """
 from __future__ import annotations
 

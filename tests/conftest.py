@@ -7,6 +7,9 @@ import os
 
 from hypothesis import settings
 
+# the ``ngspice_exe`` fixture (skip without ngspice; fail when CI=true), for every test
+pytest_plugins = ("tests.ngspice",)
+
 settings.register_profile("ci", derandomize=True, database=None)
 if os.environ.get("CI", "").lower() == "true":
     settings.load_profile("ci")

@@ -38,8 +38,8 @@ import numpy as np
 SPICE_DIR = Path(__file__).resolve().parent / "data" / "spice"
 
 # Messages by which ngspice announces a failed or aborted analysis (seen in ngspice-39
-# logs; see /work/shared/ngspice/README.md: "ngspice -b exits with status 0 even when a
-# transient aborts").
+# logs; `ngspice -b` exits with status 0 even when a transient aborts, see
+# tests/data/spice/README.md, "The earlier step studies").
 _ABORT_PATTERNS = re.compile(
     r"timestep too small|simulation\(s\) aborted|transient solution failed|"
     r"doAnalyses:|singular matrix|no convergence|fatal error|^error[: ]|"
@@ -336,7 +336,8 @@ class Case:
     """One reference circuit.
 
     key: short name; deck: file in SPICE_DIR; frequency_hz: mains [Hz];
-    steps_per_cycle: the converged ngspice step T/tmax from the shared step studies;
+    steps_per_cycle: the converged ngspice step T/tmax from the step studies
+    (tests/data/spice/README.md);
     cycles: mains cycles simulated in the tests; firing_angle_deg: forced firing angle
     for phase control (None: rc-diac, the angle is an output); params: deck .param
     overrides."""
@@ -366,7 +367,7 @@ class Case:
                         tstop_s=n * self.period_s, exe=exe)
 
 
-# Step sizes: /work/shared/ngspice case READMEs (coarsest step whose results change by less
+# Step sizes: the earlier step studies, tests/data/spice/README.md (coarsest step whose results change by less
 # than their stated tolerance when halved): case 1 125, case 2 model B 500, case 3 4000,
 # case 4 8000 steps per cycle.
 CASE_A = Case("a", "ideal switch + R (Rashid Ex. 11.1), α 90°", "case_a_resistive.cir", 60.0, 125, 3)

@@ -1,6 +1,6 @@
 """The dimming curve: light against setting, dimming down and brightening up.
 
-Drawn from the report's sweep rows (DESIGN §6 keys).  The markers are read off those
+Drawn from the report's sweep rows (keys in docs/design.md, JSON output).  The markers are read off those
 rows for display: where the lamps go out dimming down (drop-out), where they come on
 brightening up (pop-on), knob travel that changes nothing (dead travel at either end),
 and settings whose half-cycles were not all alike (unstable).  The judgement of

@@ -12,7 +12,7 @@ import dataclasses
 from dataclasses import dataclass
 
 from loads.breaker import Breaker, Curve
-from loads.dimmer import Control, Dimmer, Edge, Wiring
+from loads.dimmer import Control, Edge, Wiring
 from loads.driver import BleederKind
 from loads.errors import InputError
 from loads.load import LoadGroup, LoadKind

@@ -12,7 +12,7 @@ from dataclasses import dataclass
 from typing import Any, Callable
 
 # Shown when the checks module cannot give its own wording (compat.cautions not
-# importable yet).  DESIGN §4 lists what every report must carry; same substance.
+# importable yet); the same substance as the cautions every report carries (README, Safety).
 FALLBACK_CAUTIONS = (
     "Work on fixed wiring only if you are qualified and permitted to do so.",
     "Isolate the circuit and prove it dead before touching any conductor.",

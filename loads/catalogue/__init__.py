@@ -4,7 +4,7 @@ Every archetype is invented and labelled so in its file; the figures are typical
 values of the trade or derivations, each named beside the value in the TOML file.  No
 maker's data is used.  The files are ordinary profile files (``schema = 1`` and one
 ``[dimmer]`` or one or more ``[[loads]]`` tables), so a user can copy one and edit it.
-``demo.toml`` is the built-in demo circuit (DESIGN §5).
+``demo.toml`` is the built-in demo circuit (``dimfit demo`` writes it).
 """
 from __future__ import annotations
 
@@ -72,5 +72,5 @@ def demo_text() -> str:
 
 
 def demo_circuit() -> Circuit:
-    """The built-in demo circuit (an invented scenario, DESIGN §5)."""
+    """The built-in demo circuit (an invented scenario)."""
     return parse_circuit(demo_text(), source=f"catalogue/{DEMO_FILE}")

@@ -106,8 +106,11 @@ def test_breaker_band_judgement():
     # IEC 60898-1, B10: no trip below 30 A rms (42.4 A peak), must trip at 50 A (70.7 A
     # peak).  Half-cycles of sine of peak p carry (p/√2)² × 10 ms of I²t.
     c = Circuit(breaker=Breaker(curve="B", rated_current_a=10.0), loads=FIL.loads)
-    runs = lambda p, i2t=None: [(0.0, sim_result(2, hc=half_cycles(4, peak=1.0, peak_line=p,
-                                                                   i2t=p ** 2 / 2 * 0.01 if i2t is None else i2t)))]
+
+    def runs(p, i2t=None):
+        return [(0.0, sim_result(2, hc=half_cycles(4, peak=1.0, peak_line=p,
+                                                   i2t=p ** 2 / 2 * 0.01 if i2t is None else i2t)))]
+
     assert ck.check_breaker(c, runs(40.0)).status is Status.PASS
     r = ck.check_breaker(c, runs(60.0))
     assert r.status is Status.FAIL and "may trip" in r.message and "type C" in r.remedy

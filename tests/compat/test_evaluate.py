@@ -1,9 +1,11 @@
-"""The orchestrator: progress, cancel, sweep rows (DESIGN §6 keys), reuse of runs."""
+"""The orchestrator: progress, cancel, sweep rows (``SWEEP_KEYS``), reuse of runs."""
 import threading
 
 import pytest
 
-from compat.evaluate import INRUSH_ANGLES_DEG, MIN_SETTINGS, SWEEP_KEYS, Cancelled, evaluate
+from compat.evaluate import MIN_SETTINGS, SWEEP_KEYS, evaluate
+from compat.runs import Cancelled
+from compat.switch_on import INRUSH_ANGLES_DEG
 from loads import simulation
 from loads.circuit import Circuit
 from loads.dimmer import Dimmer

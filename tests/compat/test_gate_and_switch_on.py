@@ -24,7 +24,8 @@ import dataclasses
 import pytest
 
 from compat import checks as ck
-from compat.evaluate import gather, switch_on_peak_a
+from compat.evaluate import gather
+from compat.switch_on import switch_on_peak_a
 from compat.report import Status
 from loads.circuit import Circuit
 from loads.dimmer import Dimmer, RcDiac

@@ -21,7 +21,7 @@ def chopped_sine(alpha_deg, peak_a, samples_per_cycle=4000, cycles=3, trailing=F
 @pytest.mark.parametrize("alpha", [0.0, 30.0, 60.0, 90.0, 120.0, 150.0])
 @pytest.mark.parametrize("trailing", [False, True])
 def test_fft_matches_fourier_series_of_chopped_sine(alpha, trailing):
-    # Closed form [derived: Fourier series of the phase-cut sine, REFERENCES AC voltage
+    # Closed form [derived: Fourier series of the phase-cut sine, RASHID4, AC voltage
     # controllers].  atol 2e-3 A: the discontinuity at α sampled at 4000/cycle.
     x = chopped_sine(alpha, 10.0, trailing=trailing)
     h = harmonic_rms_a(x, cycles=3)
@@ -38,7 +38,7 @@ def test_fourier_series_limits():
     # α = 90°: 3rd-harmonic amplitude is I_m/π (a3 = I_m/π, b3 = 0) [derived].
     assert chopped_sine_harmonic_rms(3, 90.0, 1.0) == pytest.approx(1 / math.pi / math.sqrt(2), rel=1e-12)
     # Parseval: the sum of squared harmonic rms equals the rms² of the chopped sine
-    # (rms = Vs·√(1 − α/π + sin2α/(2π)) REFERENCES) — to 1e-4 with 10000 odd orders (the tail of a jump falls as 1/N).
+    # (rms = Vs·√(1 − α/π + sin2α/(2π)), RASHID4) — to 1e-4 with 10000 odd orders (the tail of a jump falls as 1/N).
     a = math.radians(60.0)
     rms2 = 0.5 * (1 - a / math.pi + math.sin(2 * a) / (2 * math.pi))
     s = sum(chopped_sine_harmonic_rms(n, 60.0, 1.0) ** 2 for n in range(1, 20000, 2))

@@ -9,8 +9,9 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from compat.checks import CHECK_IDS
-from compat.evaluate import evaluate, switch_on_peak_a
+from compat.evaluate import evaluate
 from compat.report import Status
+from compat.switch_on import switch_on_peak_a
 from loads.breaker import Breaker
 from loads.circuit import Circuit
 from loads.dimmer import Dimmer

@@ -6,12 +6,12 @@ check is run on a short sweep of the real simulator instead.
 """
 import dataclasses
 
-import numpy as np
 import pytest
 
 from compat import checks as ck
-from compat.evaluate import evaluate, switch_on_runs, walk
+from compat.evaluate import evaluate, walk
 from compat.report import Status, Verdict
+from compat.switch_on import switch_on_runs
 from loads import simulation as sim
 from loads.breaker import Breaker
 from loads.circuit import Circuit, Range

@@ -5,9 +5,10 @@ import dataclasses
 import pytest
 
 from compat import breaker_band
-from compat.evaluate import evaluate, switch_on_surge
+from compat.evaluate import evaluate
 from compat.report import Status, Verdict
-from compat.sizing import _max_passing, _min_passing, _round_up_preferred, breaker_max_counts, smallest_correction
+from compat.sizing import _round_up_preferred, smallest_correction
+from compat.switch_on import breaker_max_counts, max_passing, min_passing, switch_on_surge
 from loads.breaker import Breaker
 from loads.circuit import Circuit
 from loads.dimmer import Dimmer
@@ -23,11 +24,11 @@ def test_bisection_finds_the_boundary(threshold):
         calls.append(n)
         return n <= threshold
 
-    assert _max_passing(ok_up_to, 1, 500) == threshold
+    assert max_passing(ok_up_to, 1, 500) == threshold
     assert len(calls) <= 2 * 10 + 2                      # logarithmic, not a scan
-    assert _min_passing(lambda n: n >= threshold, 1, 500) == threshold
-    assert _min_passing(lambda n: False, 1, 500) is None
-    assert _max_passing(lambda n: False, 1, 500) == 0
+    assert min_passing(lambda n: n >= threshold, 1, 500) == threshold
+    assert min_passing(lambda n: False, 1, 500) is None
+    assert max_passing(lambda n: False, 1, 500) == 0
 
 
 @pytest.mark.analytic

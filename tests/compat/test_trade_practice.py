@@ -14,10 +14,10 @@ import numpy as np
 import pytest
 
 from compat import checks as ck
-from compat.evaluate import evaluate, judge, switch_on_runs
+from compat.evaluate import evaluate, judge
 from compat.report import Status, Verdict
 from compat.runs import Evidence
-from compat.sizing import breaker_max_counts
+from compat.switch_on import breaker_max_counts, switch_on_runs
 from loads import simulation as sim
 from loads.breaker import Breaker
 from loads.circuit import Circuit

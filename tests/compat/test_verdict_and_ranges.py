@@ -1,4 +1,4 @@
-"""Overall verdict rules (DESIGN §4), range corners, and the cautions."""
+"""Overall verdict rules (docs/design.md, Verdict), range corners, and the cautions."""
 import pytest
 
 from compat.cautions import cautions
@@ -58,7 +58,7 @@ def test_set_path():
 
 
 def test_cautions_cover_design_points():
-    # DESIGN §4 last paragraph / RULES 3: qualified persons, isolate and prove dead,
+    # the README's Safety section: qualified persons, isolate and prove dead,
     # local rules and makers' instructions first, model estimates, differential probes.
     text = " ".join(cautions()).lower()
     for needle in ("qualified", "prove it dead", "local wiring rules", "makers", "estimate",

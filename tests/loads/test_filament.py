@@ -18,7 +18,7 @@ from loads.filament import (
 from loads.tungsten import specific_heat_j_kg_k
 
 # Lamps the trade checks are run on: general-service filaments, 25–100 W, 230 V and
-# 120 V, operating at 2700–2900 K (REFERENCES.md: "about 2700–2900 K", from memory).
+# 120 V, operating at 2700–2900 K (from memory).
 GENERAL_SERVICE = [
     Filament(rated_power_w=w, rated_voltage_v=v, operating_temperature_k=t)
     for w in (25.0, 40.0, 60.0, 100.0) for v in (230.0, 120.0) for t in (2700.0, 2800.0, 2900.0)
@@ -27,7 +27,7 @@ LAMP_100W_230V = Filament(rated_power_w=100.0, rated_voltage_v=230.0)  # default
 
 
 def _ids(lamps):
-    return [f"{l.rated_power_w:.0f}W-{l.rated_voltage_v:.0f}V-{l.operating_temperature_k:.0f}K" for l in lamps]
+    return [f"{lamp.rated_power_w:.0f}W-{lamp.rated_voltage_v:.0f}V-{lamp.operating_temperature_k:.0f}K" for lamp in lamps]
 
 
 # --- analytic -------------------------------------------------------------------
@@ -154,8 +154,7 @@ def test_photopic_v_table_area_and_peak():
 @pytest.mark.published
 @pytest.mark.parametrize("lamp", GENERAL_SERVICE, ids=_ids(GENERAL_SERVICE))
 def test_cold_to_hot_resistance_ratio(lamp):
-    # Common practice, no source: "cold resistance is about 1/14–1/15 of hot"
-    # (REFERENCES.md [trade]).  Band 13–17 as the issue asks, for 2700–2900 K.
+    # Common practice, no source: "cold resistance is about 1/14–1/15 of hot".  Band 13–17 as the issue asks, for 2700–2900 K.
     # (Marked published for want of a trade marker; the check value is trade lore.)
     ratio = geometry(lamp).cold_to_hot_ratio
     assert 13.0 <= ratio <= 17.0, ratio
@@ -178,7 +177,7 @@ def _light(lamp, v):
 
 # The exponents of the straight-wire model depend only on the operating and ambient
 # temperatures (geometry scales out of d ln Q / d ln V), so two lamps per temperature suffice.
-EXPONENT_LAMPS = [l for l in GENERAL_SERVICE if (l.rated_power_w, l.rated_voltage_v) in ((100.0, 230.0), (25.0, 120.0))]
+EXPONENT_LAMPS = [lamp for lamp in GENERAL_SERVICE if (lamp.rated_power_w, lamp.rated_voltage_v) in ((100.0, 230.0), (25.0, 120.0))]
 
 
 @pytest.mark.published
@@ -212,7 +211,7 @@ def _warm_up(lamp, v_rms, t_end_s=1.0):
 
 @pytest.mark.published
 def test_warm_up_time_of_a_100w_230v_lamp():
-    # Common practice, no source (REFERENCES.md [trade]): the switch-on surge of a 100 W
+    # Common practice, no source: the switch-on surge of a 100 W
     # lamp settles within about 0.05–0.1 s.  The model has no lead, support or gas losses
     # and a straight wire lighter than a real coil, so it is expected to be somewhat fast;
     # band 0.02–0.3 s (engineering choice: a factor of about 2.5–3 either side of lore).
@@ -250,7 +249,7 @@ def _switch_on(lamp, angle_deg, cycles, f_hz=50.0, t0_k=None):
 
 @pytest.mark.published
 def test_cold_switch_on_peak_current_ratio():
-    # Common practice, no source (REFERENCES.md [trade]): switch-on current about
+    # Common practice, no source: switch-on current about
     # 10–15× running current; the issue asks for a cold/hot peak ratio of 10–17.
     # Worst case: switched on cold at the voltage peak (90°).  The hot peak is taken from
     # the periodic steady state on the same sine (includes the 2f temperature ripple).

@@ -1,6 +1,6 @@
 """Circuit and profile files: strict reading, exact round trip, atomic writes.
 
-These are file-format tests (our own behaviour, DESIGN §5), not physics: no outside
+These are file-format tests (our own behaviour, docs/design.md, Files), not physics: no outside
 reference is involved, so they carry no published/reference_sim/analytic marker.
 """
 from __future__ import annotations
@@ -20,7 +20,6 @@ from loads.driver import ElectronicDriver
 from loads.errors import InputError
 from loads.filament import Filament
 from loads.linear import Linear
-from loads.load import LoadKind
 
 DATA = Path(__file__).resolve().parent.parent / "data"
 BAD = DATA / "bad"

@@ -3,7 +3,7 @@
 The decks are in ``tests/data/spice/`` (see its README for what each models and how to
 rerun it); ``tests/ngspice.py`` runs them and measures their waveforms, and builds the
 same circuits from our dataclasses.  Each ngspice run is a few mains cycles at the
-converged step of the shared step studies (/work/shared/ngspice/case*/README.md), from
+converged step of the step studies (``tests/data/spice/README.md``), from
 the same cold start as ours (everything at 0 V, 0 A at t = 0, supply phase 0).
 
 Tolerances come from the issue that asked for these checks: peak currents within 2 %,
@@ -25,7 +25,6 @@ import numpy as np
 import pytest
 
 from tests import ngspice as ng
-from tests.ngspice import ngspice_exe  # noqa: F401  (pytest fixture: skip / fail without ngspice)
 
 pytestmark = pytest.mark.reference_sim
 
@@ -169,8 +168,8 @@ def case_a(ngspice_exe):
 def test_case_a_deck_reproduces_rashid_example_11_1(case_a):
     # Rashid, Power Electronics 4th ed., Example 11.1: Vo = 84.85 V, Io = 8.485 A at
     # 120 V, R = 10 ohm, alpha = 90 deg.  Closed form Vs*sqrt(1 - a/pi + sin 2a/(2 pi)),
-    # scaled by R/(R + ron) for the deck's 1 mohm switch.  rtol 1e-4: the shared case 1
-    # step study shows 1.5e-5 at this step.
+    # scaled by R/(R + ron) for the deck's 1 mohm switch.  rtol 1e-4: the earlier case 1
+    # step study (tests/data/spice/README.md) shows 1.5e-5 at this step.
     c, run, hc = case_a
     v_closed = 120.0 * math.sqrt(0.5) * 10.0 / 10.001
     assert _cycles_rms(hc["rms_v"], 0) == pytest.approx(v_closed, rel=1e-4)

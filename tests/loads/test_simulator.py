@@ -5,7 +5,6 @@ import math
 
 import numpy as np
 import pytest
-from scipy.integrate import quad
 from scipy.optimize import brentq
 
 from loads.circuit import Circuit
@@ -81,7 +80,7 @@ def test_half_cycles_symmetric_and_energy_balanced(alpha_deg):
 
 
 def rl_extinction_deg(alpha_deg, theta_rad):
-    """β from sin(β − θ) = sin(α − θ)·exp(−(β − α)/tan θ) [REFERENCES, R–L load]."""
+    """β from sin(β − θ) = sin(α − θ)·exp(−(β − α)/tan θ) [RASHID4, AC voltage controllers with R–L load]."""
     a = math.radians(alpha_deg)
 
     def f(b):
@@ -172,7 +171,7 @@ def test_rashid_example_11_2_inductive():
     avg, rms = thyristor_figures(res)
     assert rms == pytest.approx(15.07, abs=0.01)
     assert avg == pytest.approx(8.23, abs=0.01)
-    # the rms output voltage from the same waveform is 90.4 V [derived, REFERENCES]
+    # the rms output voltage from the same waveform is 90.4 V [derived, see RASHID4_EX11_2 in loads/sources.py]
     assert lc["load_rms_v"] == pytest.approx(90.4, abs=0.05)
 
 

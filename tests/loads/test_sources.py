@@ -24,7 +24,7 @@ def test_required_keys_present_and_well_formed():
 
 
 def test_recalled_entries_say_so():
-    # Figures used from memory must be flagged (STYLE.md, "Sources").
+    # Figures used from memory must be flagged (loads/sources.py, module docstring).
     for key in ("IES_HANDBOOK", "IEEE1789_2015", "IEC60725", "CIE_PHOTOPIC_V"):
         assert "from memory, unverified" in SOURCES[key].note, key
     assert SOURCES["TRADE"].note == "common practice, no source"

@@ -25,11 +25,12 @@ def _fit_uohm_cm(t_k: np.ndarray) -> np.ndarray:
 @pytest.mark.published
 def test_resistivity_fit_matches_forsythe_worthing_table_1000_to_3600_k():
     # FORSYTHE_WORTHING_1925 (CRC Handbook tabulation) vs the TOLIAS_2017 fit;
-    # REFERENCES.md: "the table and the fit agree within about 3 % above 1000 K".
+    # The table and the fit agree within about 3 % above 1000 K (as read when the data
+    # were transcribed; this test checks it).
     hot = T_TABLE_K >= 1000
     rel = _fit_uohm_cm(T_TABLE_K[hot]) / RHO_TABLE_UOHM_CM[hot] - 1.0
     print(f"fit/table - 1, 1000–3600 K: min {rel.min():+.4f}, max {rel.max():+.4f}")
-    # rtol 3 %: the agreement REFERENCES.md states for two independent data sets.
+    # rtol 3 %: that agreement, for two independent data sets.
     np.testing.assert_allclose(_fit_uohm_cm(T_TABLE_K[hot]), RHO_TABLE_UOHM_CM[hot], rtol=0.03, atol=0)
 
 
@@ -46,7 +47,7 @@ def test_resistivity_fit_below_1000_k_within_4_percent():
 
 @pytest.mark.published
 def test_spot_values_at_2800_k():
-    # Derived in REFERENCES.md from the TOLIAS_2017 fits: rho(2800 K) ≈ 86.5 uOhm·cm,
+    # Derived by hand from the TOLIAS_2017 fits: rho(2800 K) ≈ 86.5 uOhm·cm,
     # eps(2800 K) ≈ 0.310, c_p(2800 K) ≈ 38.6 J/(mol·K).  Tolerances: half a unit in the
     # last printed digit.
     assert resistivity_ohm_m(2800.0) / 1e-8 == pytest.approx(86.5, abs=0.05)
@@ -73,7 +74,7 @@ def test_specific_heat_held_above_3080_k():
 
 @pytest.mark.published
 def test_melting_point_and_density():
-    # Melting point 3695 K [REFERENCES.md, handbook]; density 19.25 g/cm³ at 293 K (TOLIAS_2017).
+    # Melting point 3695 K [handbook value, transcribed]; density 19.25 g/cm³ at 293 K (TOLIAS_2017).
     assert tungsten.MELTING_POINT_K == 3695.0
     assert tungsten.DENSITY_KG_M3 == 19250.0
 

@@ -10,7 +10,7 @@ import pytest
 from textual.widgets import Input, Label
 
 from compat.report import Verdict
-from tests.tui.fakes import FakeEvaluator, FakeFiles, make_app, sample_circuit
+from tests.tui.fakes import FakeEvaluator, FakeFiles, make_app
 from tui.circuit_screen import CircuitScreen
 from tui.modals import CheckDetailsScreen, ChoiceScreen, PathPrompt, PickerScreen, SizingScreen, TextPrompt
 from tui.widgets import CautionStrip, CircuitOutline, FieldRow, VerdictBar

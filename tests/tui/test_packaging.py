@@ -32,6 +32,10 @@ def test_tcss_files_ship_in_the_wheel(tmp_path):
     shipped = {n for n in names if n.startswith("tui/") and n.endswith(".tcss")}
     expected = {f"tui/{p.name}" for p in (ROOT / "tui").glob("*.tcss")}
     assert expected and shipped == expected
+    # the console command is the tui layer's (tui -> compat -> loads; compat.cli has no app)
+    with zipfile.ZipFile(wheel) as z:
+        entry_points = z.read(next(n for n in z.namelist() if n.endswith(".dist-info/entry_points.txt"))).decode()
+    assert "dimfit = tui.cli:main" in entry_points
 
 
 def test_starting_the_app_does_not_import_the_simulator_or_the_plots():
