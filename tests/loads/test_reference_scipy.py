@@ -310,10 +310,10 @@ def test_electronic_transformer_lamp_follows_the_filament_heat_balance(alpha_deg
     (Radau) half-cycle piece by piece.  A filament of this size ripples by a few per cent
     at 100 Hz (the old model, light = instantaneous power, rippled by 100 %)."""
     from loads.electronic_transformer import ElectronicTransformer
-    from loads.electronic_transformer import lamp as et_lamp
     et = ElectronicTransformer(rated_va=60, min_load_w=10, lamp_power_w=35, start_voltage_v=40,
                                input_capacitance_f=0.0, rated_voltage_v=230)
-    lamp = et_lamp(et)
+    # the lamp: a 35 W 12 V halogen capsule at 3000 K (halogen runs at 2900–3200 K, from memory)
+    lamp = Filament(rated_power_w=35.0, rated_voltage_v=12.0, operating_temperature_k=3000.0)
     p = fil.pack(lamp)
     f, cycles = 50.0, 30
     w, half = 2 * math.pi * f, 0.5 / f
