@@ -154,12 +154,51 @@ MIN_LOAD_EVIDENCE = ("latching", "holding", "off-state")
 
 
 def check_minimum_load(circuit: Circuit, simulated: dict[str, Status] | None = None) -> CheckResult:
-    """Total load against the dimmer's minimum load.
+    """Total load against the dimmer's minimum load, and each electronic transformer's
+    lamps against that transformer's own minimum load (per unit); the worse failure
+    leads, and every failing one is named.
 
     simulated: status of the ``MIN_LOAD_EVIDENCE`` checks on the simulated circuit.  With
     a load-correction device fitted, the device is there to stand in for missing watts,
-    so the simulation decides: the minimum is met if the switch latches and holds and
-    the lamps stay dark when off."""
+    so the simulation decides the dimmer's minimum: it is met if the switch latches and
+    holds and the lamps stay dark when off.
+
+    TRADE (common practice, no source): a self-oscillating electronic transformer
+    below its minimum load does not start its oscillator reliably, and its lamps
+    flicker or stay dark, whatever the dimmer."""
+    dimmer = _dimmer_minimum_load(circuit, simulated)
+    units = [_transformer_minimum_load(g) for g in circuit.loads
+             if isinstance(g, ElectronicTransformer) and g.min_load_w > 0]
+    failing = [r for r in [dimmer] + units if r.status is Status.FAIL]
+    if not failing or failing == [dimmer]:
+        return dimmer
+    # the worse failure leads with its figures; the message and remedy name every one
+    failing.sort(key=lambda r: r.margin)
+    worst = failing[0]
+    msg = " ".join(r.message for r in failing)
+    remedy = " ".join(r.remedy for r in failing)
+    details = {"parts": dimmer.details.get("parts"), "failing": [(r.details.get("group", "dimmer"), r.value, r.limit)
+                                                                 for r in failing]}
+    return _res("minimum-load", Status.FAIL, worst.value, worst.limit, "W", worst.margin, msg, remedy=remedy,
+                sources=("TRADE",), details=details)
+
+
+def _transformer_minimum_load(g: ElectronicTransformer) -> CheckResult:
+    """One electronic transformer group's lamps per unit against its own minimum load."""
+    m, lamp = g.min_load_w, g.lamp_power_w
+    ok = lamp >= m
+    per = "each" if g.count > 1 else "the"
+    msg = (f"{g.name}: {per} electronic transformer carries {lamp:.0f} W of lamps and needs at least {m:.0f} W "
+           "to start its oscillator; below that its lamps flicker or stay dark." if not ok else
+           f"{g.name}: {per} electronic transformer carries {lamp:.0f} W of lamps, above its {m:.0f} W minimum.")
+    remedy = None if ok else (f"Put more or bigger lamps on each {g.name} (at least {m:.0f} W per transformer), "
+                              f"or use a transformer whose minimum load is {lamp:.0f} W or less.")
+    return _res("minimum-load", Status.PASS if ok else Status.FAIL, lamp, m, "W", _margin(lamp, m, upper=False),
+                msg, remedy=remedy, sources=("TRADE",), details={"group": g.name, "per_unit": True})
+
+
+def _dimmer_minimum_load(circuit: Circuit, simulated: dict[str, Status] | None) -> CheckResult:
+    """Total load against the dimmer's minimum load (with a device: the simulation)."""
     total, parts = counted_load_w(circuit)
     m = circuit.dimmer.min_load_w
     if m <= 0:

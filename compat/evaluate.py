@@ -68,7 +68,7 @@ def walk(circuit: Circuit, settings: list[float], direction: str, sim, *, tick=N
         if cancel is not None and cancel.is_set():
             raise Cancelled()
         res = sim.simulate(circuit, setting=s, cycles=CYCLES_PER_POINT, start=state,
-                           samples_per_cycle=SWEEP_SAMPLES_PER_CYCLE)
+                           samples_per_cycle=SWEEP_SAMPLES_PER_CYCLE, settle_lamps=True)
         state = res.final_state
         point = sim.sweep_point(res, direction, s, ANALYSED_CYCLES, weights, wsum)
         runs.append(SettingRun(direction=direction, setting=s, result=res, analysed_cycles=ANALYSED_CYCLES, point=point))

@@ -37,7 +37,10 @@ state advances by that 1 ns, well inside the event tolerance).
 
 Why compiled: a pure-Python step costs tens of microseconds and a mains cycle needs
 hundreds to thousands of steps around the fast switching transients; numba brings a
-step to a few microseconds (see README, Speed).
+step to a few microseconds (see README, Speed).  numba's on-disk cache of this module
+is keyed on this file's text alone: it does not see edits to the load modules whose
+unit functions are compiled into it; after such an edit clear loads/__pycache__/kernel.*
+(or change this file).
 """
 from __future__ import annotations
 

@@ -181,8 +181,6 @@ OFF_SETTLE_NOISE = 0.1
 EFFICACY_LM_W = {LoadKind.FILAMENT: 12.0, LoadKind.MAGNETIC_TRANSFORMER: 16.0,
                  LoadKind.ELECTRONIC_TRANSFORMER: 16.0, LoadKind.ELECTRONIC_DRIVER: 90.0,
                  LoadKind.LINEAR: 0.0}
-# Lamp laws (IES_HANDBOOK, from memory): light ∝ V^3.38, power ∝ V^1.54 → light ∝ P^(3.38/1.54).
-LIGHT_POWER_EXPONENT = 3.38 / 1.54
 
 _KIND_CODE = {LoadKind.FILAMENT: K.K_FILAMENT, LoadKind.MAGNETIC_TRANSFORMER: K.K_MAGNETIC,
               LoadKind.ELECTRONIC_DRIVER: K.K_DRIVER, LoadKind.ELECTRONIC_TRANSFORMER: K.K_ETRANS,
@@ -360,6 +358,8 @@ def _state_scales(ld, nx: int, sup) -> list[float]:
         return [ld.rated_va / ld.rated_voltage_v, sup.peak_v / sup.omega_rad_s, 1000.0]
     if ld.kind is LoadKind.ELECTRONIC_DRIVER:
         return [sup.peak_v]
+    if ld.kind is LoadKind.ELECTRONIC_TRANSFORMER:
+        return [1000.0]
     out = []
     if ld.kind is LoadKind.LINEAR:
         if ld.inductance_h > 0:
@@ -377,6 +377,8 @@ def _cold_state(circuit: Circuit, pk: _Packed, t0: float, start_up: bool = False
             y[xo] = _fil.initial_temperature_k(ld)
         elif ld.kind is LoadKind.MAGNETIC_TRANSFORMER:
             y[xo + 2] = 300.0
+        elif ld.kind is LoadKind.ELECTRONIC_TRANSFORMER:
+            y[xo] = _fil.initial_temperature_k(_et.lamp(ld))
     s = np.zeros(K.N_S + len(pk.gk), dtype=np.int64)
     q = np.zeros(K.N_Q + 4 * len(pk.gk))
     q[K.T_FIRE] = np.inf
@@ -447,6 +449,8 @@ def _light_waveforms(circuit: Circuit, pk: _Packed, out: np.ndarray) -> np.ndarr
             light[g] = _fil.light_fraction(x, ld)
         elif ld.kind is LoadKind.MAGNETIC_TRANSFORMER:
             light[g] = _fil.light_fraction(x, _tr.secondary_lamp(ld))
+        elif ld.kind is LoadKind.ELECTRONIC_TRANSFORMER:
+            light[g] = _fil.light_fraction(x, _et.lamp(ld))
         else:
             light[g] = x
     return light
@@ -477,11 +481,7 @@ def _half_cycles(hc: np.ndarray, t: np.ndarray, light: np.ndarray, kinds) -> Hal
     for j in range(len(hc)):
         m = (t >= eff[j] - 1e-12) & (t < starts[j] + span[j] - 1e-12) if np.isfinite(span[j]) else np.zeros(len(t), bool)
         if m.any():
-            seg = light[:, m].mean(axis=1)
-            for g, kind in enumerate(kinds):
-                if kind is LoadKind.ELECTRONIC_TRANSFORMER:
-                    seg[g] = seg[g] ** LIGHT_POWER_EXPONENT
-            lt[j] = seg
+            lt[j] = light[:, m].mean(axis=1)
     k = np.round(starts / span) if len(hc) else np.zeros(0)
     polarity = np.where(k % 2 == 0, 1, -1)
     return HalfCycles(start_s=starts, polarity=polarity, firing_angle_deg=hc[:, K.H_FIRE],
@@ -547,14 +547,22 @@ def _steady(circuit: Circuit, pk: _Packed, t0: float, no_firing: bool) -> _State
             y[int(pk.gxo[g])] = ld.operating_temperature_k
         elif ld.kind is LoadKind.MAGNETIC_TRANSFORMER:
             y[int(pk.gxo[g]) + 2] = _tr.LAMP_OPERATING_TEMPERATURE_K
+        elif ld.kind is LoadKind.ELECTRONIC_TRANSFORMER:
+            y[int(pk.gxo[g])] = _tr.LAMP_OPERATING_TEMPERATURE_K
     st = dataclasses.replace(st, y=y)
+    # an electronic transformer's lamp is heated by the power it passes but does not act
+    # back on it, so the electrical figures repeat before the lamp has settled: its
+    # temperature is watched as well (engineering choice: to 0.5 K per two cycles)
+    et_lamps = [int(pk.gxo[g]) for g, ld in enumerate(circuit.all_loads)
+                if ld.kind is LoadKind.ELECTRONIC_TRANSFORMER]
     prev = None
+    prev_et = None
     done = 0
     # an iron core's DC settles over tens of cycles (L_m/R); wait for it, more finely
     max_cycles = STEADY_MAX_CYCLES_CORE if cored else STEADY_MAX_CYCLES
     dc_tol = 5e-5 if cored else 1e-3
     while done < max_cycles:
-        out, hc, st, _ = _run(pk, st, 2, 40)
+        out, hc, st, _ = _run(pk, st, 2, 400 if done == 0 else 40)
         done += 2
         if done == 2:
             # move each filament to the temperature its measured rms gives (one jump)
@@ -566,6 +574,7 @@ def _steady(circuit: Circuit, pk: _Packed, t0: float, no_firing: bool) -> _State
                         y[int(pk.gxo[g])] = _fil.steady_temperature_k(ld, min(v_rms, 1.2 * ld.rated_voltage_v))
                     except (ValueError, InputError):
                         pass
+            y = _settled_et_lamps(circuit, pk, y, out, 400)
             st = dataclasses.replace(st, y=y)
             continue
         # the DC line current settles with the slowest time constant (an iron core's
@@ -580,17 +589,38 @@ def _steady(circuit: Circuit, pk: _Packed, t0: float, no_firing: bool) -> _State
             d_ang = np.max(np.abs(sig[2:4] - prev[2:4]))
             d_fire = np.max(np.abs(sig[4:6] - prev[4:6]))
             d_dc = abs(sig[6] - prev[6])
-            if d_pow < 2e-3 and d_ang < 0.05 and d_fire == 0 and d_dc < max(dc_tol * rms, 1e-6):
+            d_et = max((abs(st.y[i] - prev_et[i]) for i in et_lamps), default=0.0)
+            if d_pow < 2e-3 and d_ang < 0.05 and d_fire == 0 and d_dc < max(dc_tol * rms, 1e-6) and d_et < 0.5:
                 break
         prev = sig
+        prev_et = st.y.copy()
     return st
+
+
+def _settled_et_lamps(circuit: Circuit, pk: _Packed, y: np.ndarray, out: np.ndarray,
+                      samples_per_cycle: int) -> np.ndarray:
+    """y with each electronic transformer's lamp at the temperature at which it radiates
+    the mean power the unit took over the last cycle of ``out`` (one jump)."""
+    y = y.copy()
+    last = slice(out.shape[0] - 1 - samples_per_cycle, out.shape[0] - 1)
+    for g, ld in enumerate(circuit.all_loads):
+        if ld.kind is LoadKind.ELECTRONIC_TRANSFORMER:
+            p_unit = float(np.mean(out[last, K.O_VB] * out[last, K.N_O0 + g])) / ld.count
+            y[int(pk.gxo[g])] = _et.lamp_temperature_k(ld, p_unit)
+    return y
 
 
 def simulate(circuit: Circuit, *, setting: float | None = None, firing_angle_deg: float | None = None,
              cycles: int = 10, start: str | Start | object = Start.COLD, switch_on_deg: float = 0.0,
              no_firing: bool = False, samples_per_cycle: int = 400,
-             tolerance: float = DEFAULT_TOLERANCE) -> SimResult:
-    """Simulate ``circuit`` for ``cycles`` mains cycles (see module docstring)."""
+             tolerance: float = DEFAULT_TOLERANCE, settle_lamps: bool = False) -> SimResult:
+    """Simulate ``circuit`` for ``cycles`` mains cycles (see module docstring).
+
+    settle_lamps: continuing a carried state or from the lamp-out state, start the lamps
+    of electronic transformers at the temperature of this run's mean lamp power (the
+    sweeps use this: they stand for a knob turned slowly, and a 12 V halogen takes
+    ~0.1–0.5 s to settle, longer than a sweep point).  Those lamps do not act back on the
+    circuit, so the run is made once to measure the power and again from the same state."""
     _check_args(setting, firing_angle_deg, cycles, samples_per_cycle)
     if firing_angle_deg is None and setting is None:
         setting = 1.0
@@ -613,6 +643,10 @@ def simulate(circuit: Circuit, *, setting: float | None = None, firing_angle_deg
                           tolerance=tolerance)
             state = _steady(circuit, pk_off, t0, True)
     out, hc, end, counters = _run(pk, state, cycles, samples_per_cycle)
+    carried = isinstance(start, _State) or Start(start) is Start.OFF
+    if settle_lamps and carried and LoadKind.ELECTRONIC_TRANSFORMER in pk.kinds:
+        state = dataclasses.replace(state, y=_settled_et_lamps(circuit, pk, state.y, out, samples_per_cycle))
+        out, hc, end, counters = _run(pk, state, cycles, samples_per_cycle)
     t = state.t_s + np.arange(out.shape[0]) * (period / samples_per_cycle)
     light = _light_waveforms(circuit, pk, out)
     ng = len(pk.gk)
@@ -650,7 +684,8 @@ def sweep(circuit: Circuit, settings: Sequence[float], direction: str = "down", 
     for k, s in enumerate(order):
         if cancel is not None and cancel.is_set():
             break
-        res = simulate(circuit, setting=s, cycles=cycles_per_point, start=state, samples_per_cycle=200)
+        res = simulate(circuit, setting=s, cycles=cycles_per_point, start=state, samples_per_cycle=200,
+                       settle_lamps=True)
         state = res.final_state
         points.append(sweep_point(res, direction, s, analysed_cycles, weights, wsum))
         if progress is not None:

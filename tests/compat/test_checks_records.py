@@ -12,6 +12,7 @@ from loads.breaker import Breaker
 from loads.circuit import Circuit
 from loads.dimmer import Dimmer
 from loads.driver import ElectronicDriver
+from loads.electronic_transformer import ElectronicTransformer
 from loads.filament import Filament
 from loads.linear import Linear
 from loads.transformer import MagneticTransformer
@@ -39,6 +40,41 @@ def test_rating_and_minimum_load_from_nameplates():
     total, _ = ck.counted_load_w(Circuit(loads=LED.loads, correction=dev))
     z = abs(complex(330.0, -1 / (2 * math.pi * 50 * 1e-6)))
     assert total == pytest.approx(24.0 + 230.0 ** 2 / z, rel=1e-9)
+
+
+@pytest.mark.analytic
+def test_electronic_transformer_minimum_load_per_unit():
+    # Written before the check was changed.  TRADE (common practice, no source): a
+    # self-oscillating electronic transformer below its own minimum load does not start
+    # its oscillator reliably; its lamps flicker or stay dark, whatever the dimmer.
+    # The dimmer's minimum is judged on the total as before; each transformer's on the
+    # lamps of one unit; the worse failure leads, and every failing one is named.
+    #  1. 105 VA unit, 35 W minimum, 20 W of lamp, 400 W dimmer (40 W min) → FAIL, names
+    #     the transformer; the dimmer's 20 W < 40 W (−50 %) is worse than the unit's
+    #     20 W < 35 W (−43 %) and leads
+    #  1b. the same on a dimmer with a 10 W minimum → FAIL on the transformer's 20 W < 35 W
+    #  2. the same unit with 50 W of lamp → PASS
+    #  3. two 60 VA units (20 W min) with 35 W each on a 40 W-minimum dimmer → PASS
+    #  4. the same on a dimmer with a 100 W minimum → FAIL on the dimmer's 70 W, as before
+    #  5. four 105 VA units with 20 W each (80 W total ≥ 40 W) → FAIL, names the transformer
+    def et(lamp_w, *, count=1, va=105.0, min_w=35.0, name="105 VA transformer"):
+        return ElectronicTransformer(name=name, count=count, rated_va=va, min_load_w=min_w, lamp_power_w=lamp_w)
+
+    r = ck.check_minimum_load(Circuit(loads=(et(20.0),)))
+    assert r.status is Status.FAIL and "105 VA transformer" in r.message and "dimmer" in r.message
+    assert r.limit == pytest.approx(40.0) and r.margin == pytest.approx(-0.5)
+    assert "35 W per transformer" in r.remedy
+    r = ck.check_minimum_load(Circuit(dimmer=Dimmer(min_load_w=10.0), loads=(et(20.0),)))
+    assert r.status is Status.FAIL and "105 VA transformer" in r.message and "dimmer" not in r.message
+    assert r.value == pytest.approx(20.0) and r.limit == pytest.approx(35.0) and r.margin == pytest.approx(-15 / 35)
+    assert "35 W per transformer" in r.remedy and "20 W or less" in r.remedy    # never what it has (35 W)
+    assert ck.check_minimum_load(Circuit(loads=(et(50.0),))).status is Status.PASS
+    two = (et(35.0, count=2, va=60.0, min_w=20.0, name="60 VA transformer"),)
+    assert ck.check_minimum_load(Circuit(loads=two)).status is Status.PASS
+    r = ck.check_minimum_load(Circuit(dimmer=Dimmer(min_load_w=100.0), loads=two))
+    assert r.status is Status.FAIL and r.value == pytest.approx(70.0) and r.limit == 100.0 and "dimmer" in r.message
+    r = ck.check_minimum_load(Circuit(loads=(et(20.0, count=4),)))
+    assert r.status is Status.FAIL and "105 VA transformer" in r.message and r.value == pytest.approx(20.0)
 
 
 @pytest.mark.analytic

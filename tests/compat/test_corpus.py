@@ -28,18 +28,11 @@ CASES = load_cases()
 # messages show.  Remove an entry when its case turns defensible (strict xfail fails then).
 NOT_DEFENSIBLE_TODAY = {
     "fil-rcdiac-3x60w.toml": "item 7: flicker caution on a dimmed filament at 100 Hz (plus dimming-range caution: lowest steady light 15.6 %)",
-    "fil-le-neutral-100w.toml": "item 7: flicker caution on a dimmed filament at 100 Hz",
     "fil-120v-rcdiac-2x60w.toml": "item 7: flicker caution on a dimmed filament at 120 Hz (plus dimming-range caution at 6.5 %)",
-    "hal-le-neutral-3x70w.toml": "item 7: flicker caution on dimmed mains halogen at 100 Hz",
-    "mt-le-neutral-4x60va.toml": "item 1: one polarity does not fire at full after the 1 ms gate window; dc-offset fails (36 V DC)",
     "mt-rcdiac-sym-2x60va.toml": "item 1: dc-offset fails on a symmetric rotary dimmer (1.3 V DC at setting 0.10 against 0.18 V that saturates)",
-    "mt-120v-le-neutral-3x75va.toml": "item 1: one polarity does not fire at full after the gate window; dc-offset fails (18 V DC)",
     "led-le-neutral-4x9w-bleeder.toml": "item 7: holding drops out 20-40 deg after every firing at full; lamps read a short phase (17 Hz flicker, <= 32 % light)",
     "led-120v-le-neutral-6x9w-bleeder.toml": "item 7: holding drop-outs in every half-cycle at mid settings; 20 Hz flicker",
     "led-le-2wire-phase-6x9w-bleeder.toml": "item 7: holding drop-outs in every half-cycle at full; 17 Hz flicker",
-    "led-nondimmable-le.toml": "item 4: a non-dimmable lamp on a dimmer is accepted with cautions",
-    "led-nondimmable-te.toml": "item 4: a non-dimmable lamp on a dimmer is accepted with cautions",
-    "led-te-2x5w-correction.toml": "item 6: minimum-load counts the fitted correction device's watts and fails",
     "led-rcdiac-4x6w-correction.toml": "item 6: minimum-load fails with a correction device fitted; item 7: holding and 17 Hz flicker",
     "drv-te-neutral-8x12w.toml": "item 9: current peaks at the trip level every half-cycle; turn-off-surge reaches the clamp at low settings",
     "drv-le-neutral-6x12w.toml": "item 3: breaker 'may trip' on a 47 A switch-on peak (judged on the peak alone); holding drop-outs and 17 Hz flicker at low settings",
@@ -53,13 +46,9 @@ NOT_DEFENSIBLE_TODAY = {
     "mix-rcdiac-fil60-led3x6bleeder.toml": "item 7: 17 Hz flicker at setting 0.35 with a filament lamp on the circuit; holding chatter at full",
 }
 
-# Cases whose evaluation takes over a minute today (2 Dec 2026: 99 s and 135 s wall on
-# the shared 2-core machine): the electronic-transformer model is slow (issue 8 item 5).
-SLOW_TODAY = {
-    "et-te-2x60va.toml": "slow electronic-transformer model (99 s today, issue 8 item 5); verdict today not defensible: "
-                         "off-state 'flashes every 0.00 s' (light follows the instantaneous lamp power)",
-    "et-le-neutral-3x60va.toml": "slow electronic-transformer model (135 s today, issue 8 item 5)",
-}
+# Cases whose evaluation takes over a minute: none since the electronic transformer's
+# start threshold became a smooth step (they took 99 s and 135 s before; now under 1 s).
+SLOW_TODAY: dict[str, str] = {}
 
 
 def _param(case):

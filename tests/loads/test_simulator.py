@@ -288,3 +288,31 @@ def test_a_dip_below_holding_shorter_than_the_turn_off_time_does_not_end_conduct
     assert np.all(hc.firings == 1)
     # until that end the switch current is the held one (atol 1 mA: the two runs' steps differ)
     np.testing.assert_allclose(np.abs(long.dimmer_a[-n // 2:][:k3 - 5]), i[:k3 - 5], atol=1e-3)
+
+
+@pytest.mark.regression
+@pytest.mark.parametrize("case, setting, no_firing, max_events, max_steps", [
+    ("et_two_on_rc_diac.toml", 0.0, True, 50, 1000),      # off: fed by the snubber alone
+    ("et_two_on_rc_diac.toml", 0.5, False, 50, 1000),
+    ("et_ten_on_trailing.toml", 0.05, False, 10, 2000),   # turn-off ramps into ten converters
+    ("et_ten_on_trailing.toml", 0.5, False, 10, 2000),
+])
+def test_electronic_transformer_start_threshold_costs_no_event_storm(case, setting, no_firing, max_events, max_steps):
+    """Our own counters (regression; bounds pinned at about 3–5× this code's figures:
+    rc-diac off ≈ 12 events and 150 steps per cycle, at 0.5 ≈ 10 and 280; trailing
+    edge 0 events, ≈ 420 steps).  The converter's start/stop at one voltage used to
+    chatter wherever the source could not carry its running current at V_start: 68 000
+    located events and 180 000 steps per mains cycle with the dimmer off, ~2 000 events
+    per cycle in a trailing-edge turn-off (a check took 80–170 s)."""
+    from pathlib import Path
+
+    from loads import simulation as S
+    from loads.files import read_circuit
+    c = read_circuit(Path(__file__).resolve().parent.parent / "data" / case)
+    pk = S.pack(c, setting=setting, firing_angle_deg=None, no_firing=no_firing)
+    st = S._cold_state(c, pk, 0.0)
+    _, _, st, _ = S._run(pk, st, 4, 40)                    # past the cold start
+    _, _, _, counters = S._run(pk, st, 4, 40)
+    steps, events = counters[0] / 4, counters[2] / 4
+    assert counters[1] < 1000000                           # no 1 ns bail-outs
+    assert events <= max_events and steps <= max_steps, (steps, events)
