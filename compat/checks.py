@@ -701,13 +701,31 @@ def transformer_primary_resistance_ohm(tr: MagneticTransformer) -> float:
     return PRIMARY_SHARE_OF_WINDING_R * tr.winding_resistance_pct / 100.0 * z_rated
 
 
-def transformer_dc_headroom_a(tr: MagneticTransformer) -> float:
+def transformer_dc_headroom_a(tr: MagneticTransformer, flux_fraction: float = 1.0) -> float:
     """DC magnetising current one transformer takes before its core reaches the
-    saturation knee at rated voltage [A]: (knee/rated flux − 1) × the magnetising
-    current peak, the magnetising branch being linear below the knee."""
+    saturation knee [A]: (knee flux − AC flux amplitude)/rated flux × the magnetising
+    current peak, the magnetising branch being linear below the knee.  flux_fraction:
+    the AC flux amplitude at the setting judged, as a fraction of that at rated voltage
+    (1 at full; a dimmed transformer swings less flux, leaving more room for DC) [1]."""
     i_rated = tr.rated_va / tr.rated_voltage_v
     i_mag_peak = math.sqrt(2.0) * tr.magnetising_current_pct / 100.0 * i_rated
-    return (tr.saturation_flux_ratio - 1.0) * i_mag_peak
+    return (tr.saturation_flux_ratio - min(max(flux_fraction, 0.0), 1.0)) * i_mag_peak
+
+
+def switched_flux_fraction(run: SettingRun) -> float:
+    """The largest AC flux amplitude the conduction windows give, as a fraction of the
+    rated one [1]: a half-cycle conducting from α to β applies V̂/ω·(cos α − cos β) of
+    volt-seconds, against 2·V̂/ω for a whole half-cycle of sine (flux is the integral of
+    the applied voltage; the same windows as ``switched_dc_voltage_v``)."""
+    hc = run.half_cycles
+    fire = np.asarray(hc.firing_angle_deg, dtype=float)
+    ext = np.asarray(hc.extinction_angle_deg, dtype=float)
+    ok = np.isfinite(fire)
+    if not np.any(ok):
+        return 0.0
+    b = np.where(np.isfinite(ext), ext, 180.0)
+    swing = (np.cos(np.radians(fire[ok])) - np.cos(np.radians(b[ok]))) / 2.0
+    return float(min(max(np.max(swing), 0.0), 1.0))
 
 
 def switched_dc_voltage_v(circuit: Circuit, run: SettingRun) -> float:
@@ -782,29 +800,41 @@ def check_dc_offset(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResult
     if not runs:
         return _na("dc-offset", "No sweep was simulated.", safety=True)
     trs = [g for g in circuit.loads if isinstance(g, MagneticTransformer)]
+    # A change of setting leaves an iron core's flux relaxing for about a second (L_m/R),
+    # and while it does the firing itself differs slightly between polarities; that
+    # part of the DC reverses with the direction the knob moved, so where a setting was
+    # visited both ways the DC that persists is the mean of the two (engineering
+    # choice: the first-order response to a step up and a step down are opposite).
+    measured = [(r, switched_dc_voltage_v(circuit, r)) for r in runs]
+    by_setting: dict[float, list[float]] = {}
+    for r, v in measured:
+        by_setting.setdefault(round(r.setting, 9), []).append(v)
     worst = None
-    for r in runs:
+    for r, v_measured in measured:
         hc = r.half_cycles
         n2 = (len(hc) // 2) * 2
         if n2 == 0 or not np.any(np.isfinite(hc.firing_angle_deg)):
             continue
-        v_dc = switched_dc_voltage_v(circuit, r)
+        both = by_setting[round(r.setting, 9)]
+        v_dc = float(np.mean(both)) if len(both) > 1 else v_measured
         i_dc = float(np.mean(hc.mean_current_a[len(hc) - n2:]))
         pos = hc.polarity[len(hc) - n2:] > 0
         pk = hc.peak_line_current_a[len(hc) - n2:]
         ppos, pneg = float(np.max(pk[pos], initial=0.0)), float(np.max(pk[~pos], initial=0.0))
         lo_, hi_ = min(ppos, pneg), max(ppos, pneg)
         asym = 100.0 * (hi_ / lo_ - 1.0) if lo_ > 0 else 0.0
+        flux = switched_flux_fraction(r)
         if trs:
-            ratio = max(abs(v_dc) / transformer_primary_resistance_ohm(g) / transformer_dc_headroom_a(g) for g in trs)
+            ratio = max(abs(v_dc) / transformer_primary_resistance_ohm(g) / transformer_dc_headroom_a(g, flux)
+                        for g in trs)
         else:
             ratio = 0.0
         key = (ratio, asym)
         if worst is None or key > worst[0]:
-            worst = (key, r, v_dc, i_dc, asym)
+            worst = (key, r, v_dc, i_dc, asym, flux)
     if worst is None:
         return _na("dc-offset", "No half-cycle conducted.", safety=True)
-    (ratio, asym), r, v_dc, i_dc, asym = worst
+    (ratio, asym), r, v_dc, i_dc, asym, flux = worst
     details = {"worst_setting": r.setting, "direction": r.direction, "dc_voltage_v": v_dc, "dc_current_a": i_dc,
                "peak_asymmetry_pct": asym, "mean_load_voltage_v": float(np.mean(r.result.load_v[r.span])),
                "fires_symmetrically": fires_symmetrically(circuit.dimmer)}
@@ -812,10 +842,10 @@ def check_dc_offset(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResult
         return _res("dc-offset", Status.NOT_APPLICABLE, abs(v_dc), None, "V", None,
                     f"No iron-core transformer on the circuit; the {abs(v_dc):.2f} V DC the dimmer leaves does no harm to these lamps.",
                     sources=("TRADE",), safety=True, details=details)
-    g = max(trs, key=lambda g: abs(v_dc) / transformer_primary_resistance_ohm(g) / transformer_dc_headroom_a(g))
+    g = max(trs, key=lambda g: abs(v_dc) / transformer_primary_resistance_ohm(g) / transformer_dc_headroom_a(g, flux))
     i_set = abs(v_dc) / transformer_primary_resistance_ohm(g)
-    head = transformer_dc_headroom_a(g)
-    details.update({"settled_dc_a": i_set, "headroom_a": head, "transformer": g.name})
+    head = transformer_dc_headroom_a(g, flux)
+    details.update({"settled_dc_a": i_set, "headroom_a": head, "transformer": g.name, "flux_fraction": flux})
     m = _margin(i_set, head)
     base = (f"At {_fmt_setting(r)} the dimmer leaves {abs(v_dc):.2f} V DC on the load, which settles to "
             f"{1000 * i_set:.0f} mA DC in {g.name}'s primary against {1000 * head:.0f} mA that takes its core to saturation")
@@ -872,13 +902,17 @@ def dimming_curve(runs: Sequence[SettingRun], weights) -> list[dict]:
     return rows
 
 
-def check_dimming_range(circuit: Circuit, down: Sequence[SettingRun], up: Sequence[SettingRun], weights) -> CheckResult:
+def check_dimming_range(circuit: Circuit, down: Sequence[SettingRun], up: Sequence[SettingRun], weights,
+                        bottom: Sequence[SettingRun] = ()) -> CheckResult:
     """Lowest and highest stable light, dead travel, drop-out and pop-on (LRC_ASSIST_DIMMING)."""
     if not down:
         return _na("dimming-range", "No sweep was simulated.")
     curve_d = dimming_curve(down, weights)
     curve_u = dimming_curve(up, weights)
-    stable_lit = [row for row in curve_d + curve_u if row["stable"] and row["light_fraction"] > LIT_FRACTION]
+    # bottom: settings between the grid's last lit one and the drop-out, found going down
+    # (they count for the lowest steady light, not for the curve's rows)
+    stable_lit = [row for row in curve_d + curve_u + dimming_curve(bottom, weights)
+                  if row["stable"] and row["light_fraction"] > LIT_FRACTION]
     details = {"down": curve_d, "up": curve_u}
     trips = protection_summary(circuit, list(down) + list(up))
     if trips is not None:

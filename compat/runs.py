@@ -86,7 +86,8 @@ class Evidence:
 
     down / up: the sweep in each direction, in the order visited; inrush: switch-on runs
     at setting 1 as (switch-on angle [deg], result); off: the switch never firing, from
-    cold; harmonics: the worst setting re-run on a fine grid for the FFT;
+    cold; harmonics: the worst setting re-run on a fine grid for the FFT; bottom: settings
+    between the last lit grid setting going down and the drop-out (dimming range only);
     light_weights: per-group weights (summing to 1) giving total light fraction."""
 
     circuit: Circuit
@@ -95,6 +96,7 @@ class Evidence:
     inrush: tuple[tuple[float, SimResult], ...] = ()
     off: SimResult | None = None
     harmonics: tuple[SettingRun, ...] = ()
+    bottom: tuple[SettingRun, ...] = ()
     light_weights: np.ndarray = field(default_factory=lambda: np.ones(1))
 
     @property

@@ -213,6 +213,37 @@ def test_dc_offset_from_dc_voltage_and_peaks():
 
 
 @pytest.mark.analytic
+def test_dc_headroom_grows_as_dimming_lowers_the_flux():
+    # flux is the integral of the applied voltage: conducting from α to β a half-cycle
+    # swings V̂/ω·(cos α − cos β) against 2V̂/ω at full, so firing at 90° halves the AC
+    # flux; the DC the core takes before its knee is (knee − AC flux) × I_mag,peak
+    hc = half_cycles(6, firing=90.0, extinction=180.0)
+    assert ck.switched_flux_fraction(run(0.5, hc=hc)) == pytest.approx(0.5, abs=1e-12)
+    assert ck.switched_flux_fraction(run(1.0, hc=half_cycles(6, firing=0.0))) == pytest.approx(1.0, abs=1e-12)
+    k = TR.saturation_flux_ratio
+    # rel 1e-12: the same closed form evaluated twice
+    assert ck.transformer_dc_headroom_a(TR, 0.5) / ck.transformer_dc_headroom_a(TR) == pytest.approx(
+        (k - 0.5) / (k - 1.0), rel=1e-12)
+
+
+@pytest.mark.analytic
+def test_dc_that_reverses_with_the_knob_direction_is_the_core_settling():
+    # a symmetric dimmer visited at one setting from above and from below: the core's
+    # flux still relaxing after the change makes the firing differ by a degree between
+    # polarities, with opposite signs in the two directions; that transient is not a
+    # DC that persists (the mean of the two).  The same asymmetry in both directions is.
+    c = Circuit(loads=(TR,))
+    a_neg = math.degrees(math.acos(-2 * math.pi / c.supply.peak_v))        # 1 V of DC, as above
+    down = run(0.5, direction="down", hc=half_cycles(6, peak_line=1.0, firing=[90.0, a_neg] * 3))
+    up = run(0.5, direction="up", hc=half_cycles(6, peak_line=1.0, firing=[a_neg, 90.0] * 3))
+    r = ck.check_dc_offset(c, [down, up])
+    assert r.status is Status.PASS and r.details["dc_voltage_v"] == pytest.approx(0.0, abs=1e-9)
+    assert ck.check_dc_offset(c, [down]).status is Status.FAIL
+    both_ways = run(0.5, direction="up", hc=half_cycles(6, peak_line=1.0, firing=[90.0, a_neg] * 3))
+    assert ck.check_dc_offset(c, [down, both_ways]).status is Status.FAIL
+
+
+@pytest.mark.analytic
 def test_turn_off_surge_against_clamp():
     c = Circuit(dimmer=TRAIL, loads=(TR,))
     v = np.zeros(3 * SPC)

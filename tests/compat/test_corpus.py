@@ -29,7 +29,6 @@ CASES = load_cases()
 NOT_DEFENSIBLE_TODAY = {
     "fil-rcdiac-3x60w.toml": "item 7: flicker caution on a dimmed filament at 100 Hz (plus dimming-range caution: lowest steady light 15.6 %)",
     "fil-120v-rcdiac-2x60w.toml": "item 7: flicker caution on a dimmed filament at 120 Hz (plus dimming-range caution at 6.5 %)",
-    "mt-rcdiac-sym-2x60va.toml": "item 1: dc-offset fails on a symmetric rotary dimmer (1.3 V DC at setting 0.10 against 0.18 V that saturates)",
     "led-le-neutral-4x9w-bleeder.toml": "item 7: holding drops out 20-40 deg after every firing at full; lamps read a short phase (17 Hz flicker, <= 32 % light)",
     "led-120v-le-neutral-6x9w-bleeder.toml": "item 7: holding drop-outs in every half-cycle at mid settings; 20 Hz flicker",
     "led-le-2wire-phase-6x9w-bleeder.toml": "item 7: holding drop-outs in every half-cycle at full; 17 Hz flicker",

@@ -215,3 +215,20 @@ def test_dimmer_protection_tripping_is_reported_as_a_shutdown():
     assert "protection" in checks["dimming-range"].message
     assert checks["dimming-range"].status is not Status.PASS
     assert rep.verdict is Verdict.UNSUITABLE
+
+
+@pytest.mark.regression
+def test_the_periodic_state_at_full_is_the_one_a_soft_start_reaches():
+    # our own output, pinned: eight 12 W drivers (22 µF each) on a trailing-edge dimmer
+    # with a 20 A trip.  Running at full, the charging pulses peak near 3.6 A.  The
+    # steady-state search used to start their bulk capacitors empty, and charging 176 µF
+    # from the zero crossing at full conduction tripped the dimmer in every half-cycle,
+    # a state it never left; it now starts them charged, as the dimmer's soft start
+    # leaves them (the switch-on runs judge the start itself).
+    from pathlib import Path
+
+    from loads.files import read_circuit
+    c = read_circuit(Path(__file__).resolve().parent.parent / "data" / "corpus" / "drv-te-neutral-8x12w.toml")
+    r = sim.simulate(c, setting=1.0, cycles=3, start="steady")
+    assert np.all(r.half_cycles.peak_current_a < 0.5 * c.dimmer.trip_current_a)
+    assert np.all(r.half_cycles.extinction_angle_deg > 160.0)      # conducts to its set turn-off, 165°
