@@ -128,17 +128,20 @@ DROP_OUT_HALVINGS = 4
 
 
 def refine_drop_out(circuit: Circuit, down, sim, *, cancel=None) -> tuple[SettingRun, ...]:
-    """Where the walk down goes dark between two grid settings, the settings between
-    them that still give steady light, found by halving the gap from the lit side with
-    the circuit's state carried (the knob turned on down slowly).  The dimming range's
+    """Where the walk down loses steady light between two grid settings (the lamps go
+    dark or start to misfire), the settings between them that still give steady light,
+    found by halving the gap from the lit side with the circuit's state carried (the
+    knob turned on down slowly).  The dimming range's
     lowest light is read from these too: on a coarse grid the last lit setting can sit
     well above the light at which the lamps really drop out."""
     weights = sim.reference_light_weights(circuit)
     wsum = float(np.sum(weights))
     out = []
+    def steady_light(r):
+        return r.point is not None and r.point.stable and r.point.light_fraction > ck.LIT_FRACTION
+
     for hi, lo in zip(down, down[1:]):
-        lit_hi = hi.point is not None and hi.point.stable and hi.point.light_fraction > ck.LIT_FRACTION
-        if not lit_hi or lo.point is None or lo.point.light_fraction > ck.LIT_FRACTION:
+        if not steady_light(hi) or steady_light(lo):
             continue
         s_hi, s_lo, state = hi.setting, lo.setting, hi.result.final_state
         for _ in range(DROP_OUT_HALVINGS):

@@ -232,3 +232,20 @@ def test_the_periodic_state_at_full_is_the_one_a_soft_start_reaches():
     r = sim.simulate(c, setting=1.0, cycles=3, start="steady")
     assert np.all(r.half_cycles.peak_current_a < 0.5 * c.dimmer.trip_current_a)
     assert np.all(r.half_cycles.extinction_angle_deg > 160.0)      # conducts to its set turn-off, 165°
+
+
+@pytest.mark.regression
+def test_lowest_steady_light_is_found_between_the_grid_settings():
+    # our own output, pinned in shape: three 60 W filaments on a rotary dimmer with a
+    # 470 kΩ pot.  Going down, the grid's last steady setting (0.35) gives 3.3 % light
+    # and the next (0.30) already misfires; a hand turning the knob slowly finds steady
+    # light below that, between the two.  The lowest steady light is read there.
+    from compat.evaluate import gather
+    from loads.dimmer import RcDiac
+    c = Circuit(dimmer=Dimmer(rc_diac=RcDiac(variable_resistance_ohm=470e3)),
+                loads=(Filament(name="lamp", count=3, rated_power_w=60.0),))
+    ev = gather(c)
+    grid_low = min(r.point.light_fraction for r in ev.down if r.point.stable and r.point.light_fraction > ck.LIT_FRACTION)
+    assert ev.bottom and all(0.30 < r.setting < 0.35 for r in ev.bottom)
+    d = by_id(judge(ev))["dimming-range"]
+    assert ck.LIT_FRACTION < d.details["lowest_stable_light"] < 0.5 * grid_low
