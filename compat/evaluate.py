@@ -187,6 +187,12 @@ SWEEP_CHECKS = ("latching", "holding", "repetitive-peak", "dc-offset", "turn-off
 # Engineering choice: a trim that must sit above half the knob's travel leaves too little
 # range to call the failure a trim matter.
 TRIM_MAX_SETTING = 0.5
+# Engineering choice: on a dimmer without a trim, lamps that misbehave only in the
+# bottom quarter of the knob's travel are a caution (the trade accepts LED lamps that
+# flicker or cut out at the very bottom of a leading-edge dimmer, telling the customer
+# where the usable range ends); above that, a failure.  Safety failures (a spike into
+# the clamp, DC in a core, overload) stay failures wherever the knob can reach them.
+UNTRIMMED_MAX_SETTING = 0.25
 
 
 def _sweep_checks(c: Circuit, down, up, w, bottom=()) -> dict[str, CheckResult]:
@@ -220,8 +226,9 @@ def usable_from(ev: Evidence, full: dict[str, CheckResult]) -> tuple[float, dict
 
 def _bottom_of_travel(ev: Evidence, full: dict[str, CheckResult]) -> dict[str, CheckResult]:
     """Failures confined to the bottom of the knob's travel: with a low-end trim, a
-    caution that gives the trim setting; without one, the failure says where the
-    usable range ends."""
+    caution that gives the trim setting; without one, a caution that says where the
+    usable range ends if that is in the bottom quarter (``UNTRIMMED_MAX_SETTING``), else
+    the failure says so."""
     found = usable_from(ev, full)
     if found is None:
         return full
@@ -234,13 +241,20 @@ def _bottom_of_travel(ev: Evidence, full: dict[str, CheckResult]) -> dict[str, C
         if res.status is not Status.FAIL:
             continue
         details = dict(res.details, usable_from_setting=s)
+        kept = above[cid]
+        status = Status.CAUTION if kept.status is Status.PASS else kept.status
         if ev.circuit.dimmer.low_end_trim:
-            kept = above[cid]
             out[cid] = dataclasses.replace(
-                kept, status=Status.CAUTION if kept.status is Status.PASS else kept.status,
+                kept, status=status,
                 message=(f"Below setting {s:.2f} only: {res.message} Set the dimmer's low-end trim to setting "
                          f"{s:.2f}{angle} and it works over the rest of the travel."),
                 remedy=f"Set the low-end trim to setting {s:.2f}{angle}.", details=details)
+        elif s <= UNTRIMMED_MAX_SETTING + 1e-9 and not res.safety:
+            out[cid] = dataclasses.replace(
+                kept, status=status,
+                message=(f"Below setting {s:.2f} only: {res.message} The usable range ends at setting {s:.2f}"
+                         f"{angle}: tell the user, or fit a dimmer with a low-end trim."),
+                remedy=f"A dimmer with a low-end trim, set to {s:.2f}.", details=details)
         else:
             out[cid] = dataclasses.replace(
                 res, message=res.message + f" It works from setting {s:.2f} up: the usable range ends there.",

@@ -3,7 +3,7 @@ import threading
 
 import pytest
 
-from compat.evaluate import MIN_SETTINGS, SWEEP_KEYS, evaluate
+from compat.evaluate import DROP_OUT_HALVINGS, MIN_SETTINGS, SWEEP_KEYS, evaluate
 from compat.runs import Cancelled
 from compat.switch_on import INRUSH_ANGLES_DEG
 from loads import simulation
@@ -35,8 +35,9 @@ def test_progress_rows_and_number_of_runs():
     rep = evaluate(C, settings=5, progress=lambda d, t: seen.append((d, t)), simulator=sim)
     total = 2 * MIN_SETTINGS + len(INRUSH_ANGLES_DEG) + 1           # settings below 21 are raised to 21
     assert seen[-1] == (total, total) and [d for d, _ in seen] == sorted(d for d, _ in seen)
-    # one run per sweep point, per switch-on angle, the off-state, and one fine re-run for harmonics
-    assert sim.calls == total + 1
+    # one run per sweep point, per switch-on angle, the off-state, one fine re-run for
+    # harmonics, and the halvings that find where the fake's light is lost going down
+    assert sim.calls == total + 1 + DROP_OUT_HALVINGS
     assert len(rep.sweep) == 2 * MIN_SETTINGS
     for row in rep.sweep:
         assert tuple(row) == SWEEP_KEYS
