@@ -11,6 +11,14 @@ from loads.errors import require
 from loads.load import LoadGroup, LoadKind
 
 
+# Common practice, from memory: LED lamps and drivers made for phase-cut dimmers carry a
+# bleeder and an R–C damper on their input together (tens to hundreds of ohms); a lamp
+# with a bleeder is taken to have one of 100 Ω unless its file says otherwise
+# (engineering choice of value: near the surge impedance √(L/C) of a few lamps' input
+# capacitors with a typical supply's inductance, where a damper works best).
+DEFAULT_DAMPING_OHM = 100.0
+
+
 class BleederKind(StrEnum):
     RESISTIVE = "resistive"
     CONSTANT_CURRENT = "constant-current"
@@ -27,7 +35,11 @@ class ElectronicDriver(LoadGroup):
     min_light_fraction: lowest light the decode curve gives while running [1];
     dimmable: false → draws full power whatever the phase;
     converter_power_w: drawn from the bulk capacitor at full light (None: derived so the
-    input power undimmed at rated voltage equals rated_power_w) [W]."""
+    input power undimmed at rated voltage equals rated_power_w) [W];
+    input_damping_ohm: resistance in series with the input capacitor, an R–C damper that
+    lamps made for phase dimmers carry against the ring at each firing (0: the capacitor
+    sits directly across the terminals; None: ``DEFAULT_DAMPING_OHM`` for a lamp with a
+    bleeder, which marks it as made for phase dimmers, else 0) [Ω]."""
 
     input_capacitance_f: float = 47e-9        # common practice, no source (X-capacitor tens of nF)
     series_resistance_ohm: float = 10.0       # common practice, no source (fusible input resistor)
@@ -39,6 +51,7 @@ class ElectronicDriver(LoadGroup):
     min_light_fraction: float = 0.05
     dimmable: bool = True
     converter_power_w: float | None = None
+    input_damping_ohm: float | None = None
 
     kind = LoadKind.ELECTRONIC_DRIVER
 
@@ -57,6 +70,15 @@ class ElectronicDriver(LoadGroup):
         require(0 <= self.min_light_fraction < 1, "min_light_fraction", self.min_light_fraction, "must be between 0 and 1")
         require(self.converter_power_w is None or self.converter_power_w > 0, "converter_power_w",
                 self.converter_power_w, "W must be positive")
+        require(self.input_damping_ohm is None or self.input_damping_ohm >= 0, "input_damping_ohm",
+                self.input_damping_ohm, "Ω must not be negative")
+
+    @property
+    def damping_ohm(self) -> float:
+        """The input damper in effect [Ω] (see ``input_damping_ohm``)."""
+        if self.input_damping_ohm is not None:
+            return self.input_damping_ohm
+        return DEFAULT_DAMPING_OHM if self.bleeder_a > 0 else 0.0
 
     @property
     def stop_v(self) -> float:
@@ -72,6 +94,8 @@ class ElectronicDriver(LoadGroup):
 #   bleeder:    resistive  i_bl = v / R_bl,   R_bl = √2·V_rated / I_bl
 #               constant-current  i_bl = I_bl · clip(v / V_knee, −1, 1)
 #   terminal:   i = i_br + i_bl            (the input capacitor is part of the node capacitance)
+#   damper:     with R_d > 0 the input capacitor is a state behind R_d instead:
+#               i += (v − v_in)/R_d,  C_in·dv_in/dt = (v − v_in)/R_d
 #   bus:        C_bulk · dv_bus/dt = |i_br| − i_conv,
 #               i_conv = P_conv · level / v_bus   while the converter runs
 #   converter:  starts when v_bus ≥ V_start, stops when v_bus ≤ V_stop (hysteresis)
@@ -95,9 +119,14 @@ DECODE_HIGH = 0.90              # engineering choice: conduction share that give
 FILTER_GAIN = 0.3               # engineering choice: ~3 half-cycles to follow a change (≈ 30 ms at 50 Hz)
 
 # parameter vector layout
-_RS, _VDD, _CB, _PCONV, _VSTART, _VSTOP, _BLKIND, _BLPAR, _VSENSE, _MINL, _DIMM = range(11)
-N_PARAMS = 11
-N_STATES = 1
+_RS, _VDD, _CB, _PCONV, _VSTART, _VSTOP, _BLKIND, _BLPAR, _VSENSE, _MINL, _DIMM, _RD, _CIN = range(13)
+N_PARAMS = 13
+N_STATES = 1                    # the bus; a damped input capacitor adds one (n_states)
+
+
+def n_states(d: "ElectronicDriver") -> int:
+    """States of one unit: the bus voltage, and the damped input capacitor's if any."""
+    return 2 if d.damping_ohm > 0 else 1
 RUNNING = 1
 CONDUCTING = 2                  # the bridge conducts ...
 NEGATIVE = 4                    # ... on the negative half-wave
@@ -116,7 +145,8 @@ def pack(d: "ElectronicDriver") -> np.ndarray:
     p_conv = d.converter_power_w if d.converter_power_w is not None else max(d.rated_power_w - p_bleed, 0.05 * d.rated_power_w)
     return np.array([d.series_resistance_ohm, 2 * BRIDGE_DIODE_DROP_V, d.bulk_capacitance_f, p_conv,
                      d.start_voltage_v, d.stop_v, bl_kind, bl_par, SENSE_FRACTION * v_pk,
-                     d.min_light_fraction, 1.0 if d.dimmable else 0.0])
+                     d.min_light_fraction, 1.0 if d.dimmable else 0.0, d.damping_ohm,
+                     d.input_capacitance_f])
 
 
 @numba.njit(cache=True, _nrt=False)
@@ -140,6 +170,8 @@ def unit_current(v, y, xo, p, mode):
         i += v / p[_BLPAR]
     elif k == 2.0:
         i += p[_BLPAR] * min(max(v / BLEEDER_KNEE_V, -1.0), 1.0)
+    if p[_RD] > 0.0:
+        i += (v - y[xo + 1]) / p[_RD]
     return i
 
 
@@ -150,11 +182,15 @@ def unit_rhs(v, y, xo, p, mode, level, F):
     if mode & RUNNING:
         i_conv = p[_PCONV] * level / max(vbus, 1.0)
     F[xo] = _bridge(v, vbus, p, mode) - i_conv
+    if p[_RD] > 0.0:
+        F[xo + 1] = (v - y[xo + 1]) / p[_RD]
 
 
 @numba.njit(cache=True, _nrt=False)
 def unit_mass(p, M, xo):
     M[xo] = p[_CB]
+    if p[_RD] > 0.0:
+        M[xo + 1] = p[_CIN]
 
 
 @numba.njit(cache=True, _nrt=False)

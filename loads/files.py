@@ -103,7 +103,8 @@ RANGEABLE: frozenset[tuple[type, str]] = frozenset({
     (RcDiac, "breakover_v"),
     (Supply, "source_resistance_ohm"), (Supply, "source_inductance_h"),
     *((LOAD_CLASSES[LoadKind.ELECTRONIC_DRIVER], f) for f in
-      ("input_capacitance_f", "bulk_capacitance_f", "series_resistance_ohm", "start_voltage_v", "bleeder_a")),
+      ("input_capacitance_f", "bulk_capacitance_f", "series_resistance_ohm", "start_voltage_v", "bleeder_a",
+       "input_damping_ohm")),
 })
 
 

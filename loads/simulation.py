@@ -222,7 +222,7 @@ def _group_params(load, frequency_hz: float) -> tuple[np.ndarray, int]:
     if kind is LoadKind.MAGNETIC_TRANSFORMER:
         return _tr.pack(load, frequency_hz), _tr.N_STATES
     if kind is LoadKind.ELECTRONIC_DRIVER:
-        return _drv.pack(load), _drv.N_STATES
+        return _drv.pack(load), _drv.n_states(load)
     if kind is LoadKind.ELECTRONIC_TRANSFORMER:
         return _et.pack(load), _et.N_STATES
     return _lin.pack(load), _lin.n_states(load)
@@ -230,7 +230,8 @@ def _group_params(load, frequency_hz: float) -> tuple[np.ndarray, int]:
 
 def _terminal_capacitance_f(load) -> float:
     if load.kind is LoadKind.ELECTRONIC_DRIVER:
-        return load.count * load.input_capacitance_f
+        # behind a damping resistor the input capacitor is the unit's own state
+        return load.count * load.input_capacitance_f if load.damping_ohm == 0 else 0.0
     if load.kind is LoadKind.ELECTRONIC_TRANSFORMER:
         return load.count * load.input_capacitance_f
     if load.kind is LoadKind.LINEAR:
@@ -357,7 +358,7 @@ def _state_scales(ld, nx: int, sup) -> list[float]:
     if ld.kind is LoadKind.MAGNETIC_TRANSFORMER:
         return [ld.rated_va / ld.rated_voltage_v, sup.peak_v / sup.omega_rad_s, 1000.0]
     if ld.kind is LoadKind.ELECTRONIC_DRIVER:
-        return [sup.peak_v]
+        return [sup.peak_v] * _drv.n_states(ld)
     if ld.kind is LoadKind.ELECTRONIC_TRANSFORMER:
         return [1000.0]
     out = []

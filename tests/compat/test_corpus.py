@@ -28,8 +28,6 @@ CASES = load_cases()
 # messages show.  Remove an entry when its case turns defensible (strict xfail fails then).
 NOT_DEFENSIBLE_TODAY = {
     "fil-rcdiac-3x60w.toml": "item 7: flicker caution on a dimmed filament at 100 Hz (plus dimming-range caution: lowest steady light 15.6 %)",
-    "led-le-neutral-4x9w-bleeder.toml": "item 7: holding drops out 20-40 deg after every firing at full; lamps read a short phase (17 Hz flicker, <= 32 % light)",
-    "led-120v-le-neutral-6x9w-bleeder.toml": "item 7: holding drop-outs in every half-cycle at mid settings; 20 Hz flicker",
     "led-le-2wire-phase-6x9w-bleeder.toml": "item 7: holding drop-outs in every half-cycle at full; 17 Hz flicker",
     "led-rcdiac-4x6w-correction.toml": "item 6: minimum-load fails with a correction device fitted; item 7: holding and 17 Hz flicker",
     "drv-te-neutral-8x12w.toml": "item 9: current peaks at the trip level every half-cycle; turn-off-surge reaches the clamp at low settings",
@@ -39,7 +37,6 @@ NOT_DEFENSIBLE_TODAY = {
     "brk-te-20x10w-c10.toml": "turn-off-surge reaches the clamp at low settings (bulk capacitors charging when the switch opens); flicker at setting 0",
     "brk-te-30x10w-c10.toml": "item 9: peaks at the trip level every half-cycle; turn-off-surge at the clamp; flicker at setting 0",
     "brk-le-30x10w-c10.toml": "item 3: breaker 'may trip', judged on the switch-on peak alone; holding drop-outs and flicker at low settings",
-    "mix-rcdiac-fil60-led3x6bleeder.toml": "item 7: 17 Hz flicker at setting 0.35 with a filament lamp on the circuit; holding chatter at full",
 }
 
 # Cases whose evaluation takes over a minute: none since the electronic transformer's

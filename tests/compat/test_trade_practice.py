@@ -273,3 +273,30 @@ def test_a_safety_failure_at_the_bottom_of_an_untrimmed_dimmer_stays_a_failure()
                     loads=(Filament(name="lamp", count=2, rated_power_w=60.0),))
         r = by_id(judge(Evidence(circuit=c, down=down, up=up, light_weights=np.ones(1))))["turn-off-surge"]
         assert r.status is status, (trim, r.message)
+
+
+@pytest.mark.analytic
+def test_lamps_with_a_bleeder_carry_an_input_damper_unless_told():
+    from loads.driver import DEFAULT_DAMPING_OHM
+    assert ElectronicDriver(name="a", bleeder_a=0.01).damping_ohm == DEFAULT_DAMPING_OHM
+    assert ElectronicDriver(name="b").damping_ohm == 0.0
+    assert ElectronicDriver(name="c", bleeder_a=0.01, input_damping_ohm=0.0).damping_ohm == 0.0
+    assert ElectronicDriver(name="d", input_damping_ohm=47.0).damping_ohm == 47.0
+
+
+@pytest.mark.slow
+def test_an_input_damper_stops_the_ring_dropping_the_triac_out():
+    # common practice, from memory: LED lamps made for phase dimmers damp the ring of their
+    # input capacitors with the supply's inductance at each firing; without it the ring
+    # swings the triac current through zero slowly enough, a few tens of degrees after
+    # firing, to turn it off (an early drop-out in every half-cycle, and the lamps read a
+    # short phase).  Four 9 W retrofits with bleeder on a leading-edge dimmer at full.
+    from pathlib import Path
+
+    from loads.files import read_circuit
+    c = read_circuit(Path(__file__).resolve().parent.parent / "data" / "corpus" / "led-le-neutral-4x9w-bleeder.toml")
+    undamped = dataclasses.replace(c, loads=tuple(dataclasses.replace(g, input_damping_ohm=0.0) for g in c.loads))
+    ring = sim.simulate(undamped, setting=1.0, cycles=3, start="steady").half_cycles
+    damped = sim.simulate(c, setting=1.0, cycles=3, start="steady").half_cycles
+    assert np.all(ring.early_dropouts[-4:] > 0) and np.all(ring.extinction_angle_deg[-4:-1] < 90.0)
+    assert np.all(damped.extinction_angle_deg[-4:-1] > 150.0)     # near the end, where the bleeder takes over

@@ -450,3 +450,15 @@ def test_gate_drive_and_soft_start_round_trip_and_bad_values_name_the_key():
         with pytest.raises(InputError) as info:
             files.parse_profile(wrong, "p.toml")
         assert key in str(info.value) and "\n" not in str(info.value)
+
+
+def test_input_damping_round_trips_and_is_checked():
+    from loads.driver import ElectronicDriver
+    d = ElectronicDriver(name="lamp", count=2, rated_power_w=9.0, input_damping_ohm=68.0)
+    text = files.profile_to_toml([d])
+    assert "input_damping_ohm = 68.0\n" in text
+    back, _ = files.parse_profile(text)
+    assert back == [d]
+    with pytest.raises(InputError) as e:
+        files.parse_profile(text.replace("input_damping_ohm = 68.0", "input_damping_ohm = -1.0"), "p.toml")
+    assert "\n" not in str(e.value) and "input_damping_ohm" in str(e.value) and "p.toml" in str(e.value)
