@@ -6,7 +6,7 @@ they read the same everywhere.  The JSON outputs do not: they keep raw SI number
 their ``unit`` field.
 
 * **Margins** (``margin_text``): how far a value is inside its limit, as a share of the
-  limit — ``+30 %`` is 30 % inside, ``−16 %`` is 16 % outside.  Up to ±100 % a
+  limit — ``+30 %`` is 30 % inside, ``-16 %`` is 16 % outside.  Up to ±100 % a
   percentage; beyond, a ratio to the limit, which reads better than a four-digit
   percentage: ``32× the need`` (a value that must reach the limit is 32 times it) and
   ``5.1× the limit`` (a value that must stay below the limit is 5.1 times it).
@@ -23,6 +23,7 @@ from __future__ import annotations
 
 import math
 
+from compat.report import CheckResult, Status
 from loads.sources import short_title
 
 # Beyond this share of the limit a margin is written as a ratio (engineering choice: a
@@ -52,7 +53,7 @@ def margin_text(margin: float | None) -> str:
         pct = 100 * margin
         if round(pct) == 0:
             return "0 %"
-        return f"{'+' if pct > 0 else '−'}{abs(pct):.0f} %"
+        return f"{'+' if pct > 0 else '-'}{abs(pct):.0f} %"
     # margin = (value − limit)/limit for a lower limit: value/limit = 1 + margin;
     # margin = (limit − value)/limit for an upper limit: value/limit = 1 − margin
     if margin > 0:
@@ -106,6 +107,19 @@ def check_figure(check_id: str, x: float | None, unit: str) -> str:
     written in the check's own unit."""
     shown, factor = check_unit(check_id, unit)
     return quantity(None if x is None else factor * x, shown)
+
+
+def check_figures(c: CheckResult) -> tuple[str, str, str]:
+    """(value, limit, margin) of a check as every renderer shows them: in the check's
+    own unit, "—" where the check does not apply."""
+    if c.status is Status.NOT_APPLICABLE:
+        return "—", "—", "—"
+    return check_figure(c.id, c.value, c.unit), check_figure(c.id, c.limit, c.unit), margin_text(c.margin)
+
+
+def check_name(c: CheckResult, mark: str = " *") -> str:
+    """The check id, marked as a safety matter where the check applies."""
+    return c.id + (mark if c.safety and c.status is not Status.NOT_APPLICABLE else "")
 
 
 def setting_text(setting: float, direction: str | None = None) -> str:

@@ -6,9 +6,9 @@ part of every rendering that carries a verdict.
 """
 from __future__ import annotations
 
-from compat.notation import check_figure, margin_text, sources_text
+from compat.notation import check_figures, check_name, sources_text
 from compat.perception import cie_lightness, perceived_brightness
-from compat.report import CheckResult, Report, Status
+from compat.report import Report
 from loads.circuit import Circuit
 
 _VERDICT_TEXT = {"suitable": "SUITABLE", "suitable-with-cautions": "SUITABLE WITH CAUTIONS",
@@ -16,34 +16,17 @@ _VERDICT_TEXT = {"suitable": "SUITABLE", "suitable-with-cautions": "SUITABLE WIT
 
 
 # One line each, under the table and the report (the README says the same at length).
-MARGIN_NOTE = ("margin: how far inside (+) or outside (−) its limit a value is, as a share of the limit; "
+MARGIN_NOTE = ("margin: how far inside (+) or outside (-) its limit a value is, as a share of the limit; "
                "beyond 100 % as a ratio: \"32× the need\" is 32 times the least needed, "
                "\"5.1× the limit\" 5.1 times the most allowed.")
 SAFETY_NOTE = "a safety matter: a failure here can damage equipment or trip protection"
-
-
-def _applies(c: CheckResult) -> bool:
-    return c.status is not Status.NOT_APPLICABLE
-
-
-def figures(c: CheckResult) -> tuple[str, str, str]:
-    """(value, limit, margin) of a check as every renderer shows them: in the check's
-    own unit (``compat.notation.CHECK_UNITS``), "—" where the check does not apply."""
-    if not _applies(c):
-        return "—", "—", "—"
-    return check_figure(c.id, c.value, c.unit), check_figure(c.id, c.limit, c.unit), margin_text(c.margin)
-
-
-def check_name(c: CheckResult, mark: str = " *") -> str:
-    """The check id, marked as a safety matter where it applies."""
-    return c.id + (mark if c.safety and _applies(c) else "")
 
 
 def render_table(report: Report) -> str:
     """A plain-text table for a terminal: verdict, one line per check, cautions."""
     lines = [f"{report.circuit}", f"Verdict: {_VERDICT_TEXT.get(str(report.verdict), str(report.verdict))}", ""]
     head = ("check", "status", "value", "limit", "margin")
-    rows = [(check_name(c), str(c.status), *figures(c)) for c in report.checks]
+    rows = [(check_name(c), str(c.status), *check_figures(c)) for c in report.checks]
     widths = [max(len(r[i]) for r in rows + [head]) for i in range(5)]
     fmt = "  ".join("{:<%d}" % w for w in widths)
     lines.append(fmt.format(*head))
@@ -101,7 +84,7 @@ def render_markdown(report: Report, circuit: Circuit) -> str:
     for c in report.checks:
         name = check_name(c, " (safety)")
         finding = c.message + (f" Decided by {c.deciding_input}." if c.deciding_input else "")
-        value, limit, margin = figures(c)
+        value, limit, margin = check_figures(c)
         out.append(f"| {name} | {c.status} | {value} | {limit} | {margin} | {_md_escape(finding)} |")
     out += ["", f"(safety): {SAFETY_NOTE}. {MARGIN_NOTE}", ""]
     if report.sweep:
@@ -150,7 +133,7 @@ def correction_text(corr: dict) -> str:
                 if volts else f" (class {corr['capacitor_class']}, rated for the supply voltage)")
     res = f"a {r:.0f} Ω resistor" if r < 1000 else f"a {r / 1000:g} kΩ resistor"
     if corr.get("resistor_rating_w") is not None:
-        res += (f" ({corr['resistor_rating_w']:g} W or more, ±{corr.get('resistor_tolerance_pct', 0):.0f} %)")
+        res += f" (±{corr.get('resistor_tolerance_pct', 0):.0f} %, {corr['resistor_rating_w']:g} W or more)"
     text = (f"{cap} in series with {res}, across the lamps; it dissipates about {corr['loss_w']:.2f} W and carries "
             f"{1000 * corr['rms_current_a']:.0f} mA")
     if corr.get("verdict"):
