@@ -6,6 +6,9 @@ part of every rendering that carries a verdict.
 """
 from __future__ import annotations
 
+import re
+import textwrap
+
 from compat.notation import check_figures, check_name, sources_text
 from compat.perception import cie_lightness, perceived_brightness
 from compat.report import Report
@@ -22,6 +25,21 @@ MARGIN_NOTE = ("margin: how far inside (+) or outside (-) its limit a value is, 
 SAFETY_NOTE = "a safety matter: a failure here can damage equipment or trip protection"
 
 
+# The terminal table's width: a terminal's default, and what a phone shows in landscape.
+TABLE_WIDTH = 80
+
+
+def _wrap(text: str, first: str, rest: str | None = None) -> list[str]:
+    """``text`` wrapped to TABLE_WIDTH, the first line after ``first``, the others
+    indented like it (or by ``rest``)."""
+    # a number stays on the line of its unit ("10 %", "42 A"): joined by a no-break
+    # space while wrapping (textwrap does not break there), then given back its space
+    kept = re.sub(r"(\d) (?=[%A-Za-zµΩ°×])", "\\1\u00a0", text)
+    out = textwrap.wrap(kept, TABLE_WIDTH, initial_indent=first, subsequent_indent=first if rest is None else rest,
+                        break_on_hyphens=False) or [first]
+    return [line.replace("\u00a0", " ") for line in out]
+
+
 def render_table(report: Report) -> str:
     """A plain-text table for a terminal: verdict, one line per check, cautions."""
     lines = [f"{report.circuit}", f"Verdict: {_VERDICT_TEXT.get(str(report.verdict), str(report.verdict))}", ""]
@@ -32,13 +50,15 @@ def render_table(report: Report) -> str:
     lines.append(fmt.format(*head))
     lines.append(fmt.format(*("-" * w for w in widths)))
     for c, r in zip(report.checks, rows):
-        lines.append(fmt.format(*r))
-        lines.append("    " + c.message)
+        lines.append(fmt.format(*r).rstrip())
+        lines += _wrap(c.message, "    ")
         if c.remedy and str(c.status) in ("fail", "caution"):
-            lines.append("    remedy: " + c.remedy)
+            lines += _wrap("remedy: " + c.remedy, "    ")
         if c.deciding_input:
-            lines.append("    decided by: " + c.deciding_input)
-    lines += ["", f"* {SAFETY_NOTE}", MARGIN_NOTE, "", "Cautions:"] + [f"  - {t}" for t in report.cautions]
+            lines += _wrap("decided by: " + c.deciding_input, "    ")
+    lines += ["", *_wrap(f"* {SAFETY_NOTE}", ""), *_wrap(MARGIN_NOTE, ""), "", "Cautions:"]
+    for t in report.cautions:
+        lines += _wrap(t, "  - ", "    ")
     return "\n".join(lines) + "\n"
 
 
@@ -84,9 +104,10 @@ def render_markdown(report: Report, circuit: Circuit) -> str:
     for c in report.checks:
         name = check_name(c, " (safety)")
         finding = c.message + (f" Decided by {c.deciding_input}." if c.deciding_input else "")
-        value, limit, margin = check_figures(c)
+        # no-break spaces keep "70.5 %" and "32× the need" on one line in a narrow viewer
+        value, limit, margin = (x.replace(" ", "\u00a0") for x in check_figures(c))
         out.append(f"| {name} | {c.status} | {value} | {limit} | {margin} | {_md_escape(finding)} |")
-    out += ["", f"(safety): {SAFETY_NOTE}. {MARGIN_NOTE}", ""]
+    out += ["", f"(safety) marks {SAFETY_NOTE}. {MARGIN_NOTE}", ""]
     if report.sweep:
         out += ["## Dimming curve", "",
                 "| direction | setting | firing angle | conduction | load V rms | load A rms | power W | light | perceived | CIE L* | stable |",
@@ -96,8 +117,8 @@ def render_markdown(report: Report, circuit: Circuit) -> str:
             fa = "—" if r["firing_angle_deg"] is None else f"{r['firing_angle_deg']:.0f}°"
             ca = "—" if r["conduction_angle_deg"] is None else f"{r['conduction_angle_deg']:.0f}°"
             out.append(f"| {r['direction']} | {r['setting']:.2f} | {fa} | {ca} | {r['load_rms_v']:.0f} | "
-                       f"{r['load_rms_a']:.3f} | {r['power_w']:.1f} | {100 * lf:.1f} % | "
-                       f"{100 * perceived_brightness(lf):.0f} % | {cie_lightness(lf):.0f} | "
+                       f"{r['load_rms_a']:.3f} | {r['power_w']:.1f} | {100 * lf:.1f}\u00a0% | "
+                       f"{100 * perceived_brightness(lf):.0f}\u00a0% | {cie_lightness(lf):.0f} | "
                        f"{'yes' if r['stable'] else 'no'} |")
         out += ["", CURVE_NOTE, ""]
     remedies = [c for c in report.checks if c.remedy and str(c.status) in ("fail", "caution")]

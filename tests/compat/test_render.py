@@ -20,7 +20,9 @@ REPORT = Report(circuit="hall", verdict=Verdict.UNSUITABLE,
 def test_table():
     t = render_table(REPORT)
     assert "UNSUITABLE" in t and "minimum-load" in t and "24.0 W" in t and "-40 %" in t and "remedy: Add load." in t
-    assert all(c in t for c in cautions())
+    flat = " ".join(t.split())                            # the table wraps its text at 80 columns
+    assert all(c in flat for c in cautions())
+    assert max(len(line) for line in t.splitlines()) <= 80
 
 
 def test_markdown():
