@@ -24,6 +24,7 @@ from __future__ import annotations
 import math
 
 from compat.report import CheckResult, Status
+from loads.errors import InputError
 from loads.sources import short_title
 
 # Beyond this share of the limit a margin is written as a ratio (engineering choice: a
@@ -130,8 +131,12 @@ def setting_text(setting: float, direction: str | None = None) -> str:
 
 
 def source_title(key: str) -> str:
-    """The short title of a bibliography key."""
-    return short_title(key)
+    """The short title of a bibliography key (the key itself if the bibliography does
+    not know it: a report is still shown, with the key to look up)."""
+    try:
+        return short_title(key)
+    except InputError:
+        return key
 
 
 def sources_text(keys) -> str:

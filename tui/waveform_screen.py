@@ -211,7 +211,7 @@ class WaveformScreen(Screen):
             ]
             if waiting:
                 lines.append("\n(updating…)")
-        lines.append("\n[ darker ] brighter\n{ } finely · esc back")
+        lines.append("\n\\[ darker  ] brighter\n{ } finely · esc back")
         self.query_one("#wave-figures", Static).update("\n".join(lines))
 
     def on_unmount(self) -> None:

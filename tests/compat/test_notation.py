@@ -31,6 +31,7 @@ def test_settings_and_sources_read_one_way():
     assert setting_text(0.0) == "setting 0.00"
     assert source_title("IEC60898_1") == "IEC 60898-1 (circuit-breakers)"
     assert source_title("TRADE") == "common practice, no source"
+    assert source_title("NO_SUCH_KEY") == "NO_SUCH_KEY"           # shown as is, never an error
     assert sources_text(["TRADE", "IEC60898_1", "TRADE"]) == "common practice, no source; IEC 60898-1 (circuit-breakers)"
     # every bibliography entry has a short title of its own, shorter than the full one
     assert all(s.short and len(s.short) <= len(s.title) + 30 for s in SOURCES.values())
