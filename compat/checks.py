@@ -15,6 +15,7 @@ from collections.abc import Sequence
 import numpy as np
 
 from compat import breaker_band, derating, flicker, harmonics, reference_lamp
+from compat.notation import check_figure, setting_text
 from compat.perception import cie_lightness, perceived_brightness
 from compat.report import CheckResult, Status
 from compat.runs import SettingRun, samples_per_cycle, tail
@@ -80,7 +81,7 @@ def _na(check_id: str, why: str, *, sources=(), safety=False) -> CheckResult:
 
 
 def _fmt_setting(run: SettingRun) -> str:
-    return f"setting {run.setting:.2f} ({run.direction})"
+    return setting_text(run.setting, run.direction)
 
 
 def _offer(circuit: Circuit, *options: tuple[str | None, str], lead: str = "") -> str | None:
@@ -104,12 +105,11 @@ def check_rating(circuit: Circuit) -> CheckResult:
     """Load (W, VA, LED rule) against the dimmer's derated rating."""
     use = derating.rating_use(circuit.dimmer, circuit.loads)
     u = use.utilisation
-    rules = "; ".join([r.text for r in use.rules] + [g.rule.text for g in use.groups])
     details = {"derating_factor": use.factor, "rules": [(r.text, r.origin) for r in use.rules],
                "groups": [(g.name, g.load, g.rating, g.unit, g.rule.text, g.rule.origin) for g in use.groups]}
     over_count = use.max_lamps is not None and use.led_units > use.max_lamps
     status = Status.FAIL if (u > 1.0 or over_count) else Status.PASS
-    msg = f"The lamps take {100 * u:.0f} % of the dimmer's derated rating ({rules})."
+    msg = f"The lamps take {100 * u:.0f} % of the dimmer's {_rating_words(circuit, use)}."
     if over_count:
         msg = (f"{use.led_units} LED lamps exceed the dimmer's printed cap of {use.max_lamps}; "
                f"they take {100 * u:.0f} % of its derated rating.")
@@ -118,6 +118,34 @@ def check_rating(circuit: Circuit) -> CheckResult:
         remedy = "Fit a dimmer with a larger rating for this load type, or split the lamps over two dimmers."
     return _res("rating", status, 100 * u, 100.0, "%", 1.0 - u, msg, remedy=remedy, sources=("TRADE",),
                 safety=True, details=details)
+
+
+_KIND_WORDS = {"filament": "filament lamps", "electronic-driver": "LED lamps",
+               "magnetic-transformer": "iron-core transformers", "electronic-transformer": "electronic transformers",
+               "linear": "other loads"}
+
+
+def _rating_words(circuit: Circuit, use: derating.RatingUse) -> str:
+    """The rating and how each group was counted against it, in words: "400 W rating:
+    42 W of filament lamps (10 %) and 24 W of LED lamps (60 %); LED lamps count at
+    10 × their watts on this dimmer (the rule of the trade for a dimmer with no printed
+    rating for them, common practice, no source)"."""
+    d = circuit.dimmer
+    rating = f"{d.rated_load_w:.0f} W rating"
+    if use.rules:
+        rating += (f", derated to {use.factor * d.rated_load_w:.0f} W ("
+                   + "; ".join(f"{r.text}, {r.origin}" for r in use.rules) + ")")
+    parts, how = [], []
+    for load, g in zip(circuit.loads, use.groups):
+        words = _KIND_WORDS.get(str(load.kind), load.name)
+        parts.append(f"{g.load:.0f} {g.unit} of {words} ({100 * g.share:.0f} %)")
+        type_rated = g.rating / use.factor if use.factor > 0 else g.rating
+        mult = d.rated_load_w / type_rated if type_rated > 0 else math.inf
+        if abs(mult - 1.0) > 1e-9 or g.unit != "W":
+            why = (f"its printed rating of {type_rated:.0f} {g.unit} for them" if g.rule.factor == 1.0
+                   else f"the rule of the trade for a dimmer with no printed rating for them, {g.rule.origin}")
+            how.append(f"{words} count at {mult:.3g} × their {'watts' if g.unit == 'W' else 'VA'} on this dimmer ({why})")
+    return rating + ": " + " and ".join(parts) + ("; " + "; ".join(how) if how else "")
 
 
 def _linear_apparent_va(g: Linear, voltage_v: float, frequency_hz: float) -> float:
@@ -284,7 +312,7 @@ def check_edge_match(circuit: Circuit) -> CheckResult:
         share = sum(derating.group_load(g)[0] for g in cap) / total
         return _res("edge-match", Status.CAUTION, 100 * share, 0.0, "%", None,
                     f"A leading-edge dimmer switches on into capacitor-input electronics ({', '.join(g.name for g in cap)}), "
-                    "which draws a current spike at every firing; see the peak-current check.",
+                    "which draws a current spike at every firing; see the repetitive-peak check.",
                     remedy="A trailing-edge dimmer suits capacitor-input lamps better.", sources=("TRADE",))
     if ind and cap:
         return _res("edge-match", Status.CAUTION, None, None, "%", None,
@@ -425,8 +453,9 @@ def check_latching(circuit: Circuit, runs: Sequence[SettingRun], weights) -> Che
                     f"Below setting {bottom:.2f} the switch does not latch and the lamps stay off: dead travel at the bottom of the knob.",
                     sources=("TEXTBOOK_TRIAC",), details=details)
     return _res("latching", Status.PASS, worst_peak, il, "A", m,
-                f"The switch latches at every firing; the weakest half-cycle peaks at {1000 * worst_peak:.0f} mA "
-                f"against {1000 * il:.0f} mA needed ({_fmt_setting(worst)}).",
+                f"The switch latches at every firing; the weakest half-cycle peaks at "
+                f"{check_figure('latching', worst_peak, 'A')} against {check_figure('latching', il, 'A')} needed "
+                f"({_fmt_setting(worst)}).",
                 sources=("TEXTBOOK_TRIAC",), details=details)
 
 
@@ -467,8 +496,12 @@ def check_holding(circuit: Circuit, runs: Sequence[SettingRun], weights) -> Chec
         hc = r.half_cycles
         drops = int(np.sum(hc.early_dropouts))
         refires = int(np.sum(np.clip(hc.firings - 1, 0, None)))
+        again = (" (after re-firing, the switch can drop out again in the same half-cycle)"
+                 if drops > len(hc) else "")
         what = (f"At {_fmt_setting(r)} the current falls below the {ih_ma:.0f} mA holding current before the half-cycle "
-                f"ends ({drops} early drop-out(s), {refires} re-firing(s) in {len(hc)} half-cycles)")
+                f"ends: {drops} early drop-out(s) and {refires} re-firing(s) in {len(hc)} half-cycles{again}; "
+                f"conduction ends as early as {check_figure('holding', worst_ext, 'deg')}, where it should last to "
+                f"{check_figure('holding', limit, 'deg')}")
         remedy = _offer(circuit, ("no-device", "add a load-correction device"),
                         (None, "add a filament lamp so the current stays above the holding current"),
                         ("leading", "use a trailing-edge dimmer"))
@@ -683,10 +716,16 @@ def check_off_state(circuit: Circuit, off: SimResult | None, analysed_cycles: in
                     f"With the dimmer off, {1000 * leak:.1f} mA leaks through the lamps and {gname} glows "
                     f"at {100 * worst_light:.2f} % of full.",
                     remedy=remedy, details=details, sources=("TRADE",))
-    when = (f"about every {period:.2f} s" if period is not None
-            else f"at least once in {t[-1] - t[0] + 1 / off.frequency_hz:.1f} s")
+    # Engineering choice: flashes faster than 10 a second run together for the eye
+    # (a flickering glow); slower ones are seen one by one.
+    if period is not None and period < 0.1:
+        what = (f"lights in a short pulse {1 / period:.0f} times a second, seen as a faint flickering glow "
+                f"({100 * worst_light:.2f} % of full at its brightest)")
+    else:
+        what = "charges up and flashes " + (f"about every {period:.2f} s" if period is not None
+                                            else f"at least once in {t[-1] - t[0] + 1 / off.frequency_hz:.1f} s")
     return _res("off-state", Status.FAIL, 100 * worst_light, 100 * lim, "%", m,
-                f"With the dimmer off, {1000 * leak:.1f} mA leaks into {gname}, which charges up and flashes {when}.",
+                f"With the dimmer off, {1000 * leak:.1f} mA leaks into {gname}, which {what}.",
                 remedy=remedy, details=details, sources=("TRADE",))
 
 
@@ -839,7 +878,7 @@ def check_dc_offset(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResult
                "peak_asymmetry_pct": asym, "mean_load_voltage_v": float(np.mean(r.result.load_v[r.span])),
                "fires_symmetrically": fires_symmetrically(circuit.dimmer)}
     if not trs:
-        return _res("dc-offset", Status.NOT_APPLICABLE, abs(v_dc), None, "V", None,
+        return _res("dc-offset", Status.NOT_APPLICABLE, None, None, "V", None,
                     f"No iron-core transformer on the circuit; the {abs(v_dc):.2f} V DC the dimmer leaves does no harm to these lamps.",
                     sources=("TRADE",), safety=True, details=details)
     g = max(trs, key=lambda g: abs(v_dc) / transformer_primary_resistance_ohm(g) / transformer_dc_headroom_a(g, flux))
@@ -928,7 +967,7 @@ def check_dimming_range(circuit: Circuit, down: Sequence[SettingRun], up: Sequen
         why = ("See latching and holding: the dimmer does not work with this load." if circuit.dimmer.edge is Edge.LEADING
                else "The lamps do not run steadily on this dimmer at any setting: try a leading-edge dimmer or other lamps.")
         return _res("dimming-range", Status.FAIL, 0.0, 100 * DIM_TARGET_LOW, "%", None,
-                    "There is no setting at which the lamps give steady light.",
+                    "There is no setting at which the lamps give stable light.",
                     remedy=why, sources=("LRC_ASSIST_DIMMING",), details=details)
     low = min(stable_lit, key=lambda row: row["light_fraction"])
     high = max(stable_lit, key=lambda row: row["light_fraction"])
@@ -949,12 +988,12 @@ def check_dimming_range(circuit: Circuit, down: Sequence[SettingRun], up: Sequen
                     "pop_on_setting": pop["setting"] if pop else None,
                     "pop_on_light": pop["light_fraction"] if pop else None,
                     "hysteresis": hyst, "dead_travel": dead})
-    parts = [f"steady light from {100 * low['light_fraction']:.1f} % (perceived {100 * low['perceived']:.0f} %) "
+    parts = [f"stable light from {100 * low['light_fraction']:.1f} % (it looks like {100 * low['perceived']:.0f} %) "
              f"to {100 * high['light_fraction']:.0f} % of full"]
     if drop is not None:
-        parts.append(f"drops out below setting {drop:.2f}")
+        parts.append(f"go out at {setting_text(drop, 'down')}")
     if pop is not None:
-        parts.append(f"comes back on at {pop['setting']:.2f} with {100 * pop['light_fraction']:.1f} % light")
+        parts.append(f"come back on at {setting_text(pop['setting'], 'up')} with {100 * pop['light_fraction']:.1f} % light")
     if dead > 0:
         parts.append(f"{100 * dead:.0f} % of the knob travel gives no light")
     msg = "The lamps give " + "; ".join(parts) + "."
@@ -1030,7 +1069,9 @@ def check_flicker(circuit: Circuit, runs: Sequence[SettingRun], weights) -> Chec
         return _res("flicker", Status.FAIL, value, lim, "%", 1.0 - worst.low_risk_ratio,
                     f"Visible flicker: at {_fmt_setting(r)} the light swings at {a.deciding_hz:.0f} Hz, "
                     "beyond IEEE 1789's low-risk line.",
-                    remedy="Cure the misfiring first (see latching and holding), then re-check.",
+                    remedy=_offer(circuit, ("no-device", "fit a load-correction device across the lamps"),
+                                  (None, "add a filament lamp"), ("leading", "use a trailing-edge dimmer"),
+                                  lead="the switch fires unevenly from one half-cycle to the next; to steady it, "),
                     sources=src, details=details)
     desc = (f"at {_fmt_setting(s_r)} the light modulates {s_a.percent_flicker:.0f} % "
             f"(mostly at {s_a.dominant_hz:.0f} Hz), SVM {s_a.svm:.2f}")
@@ -1081,7 +1122,8 @@ def check_harmonics(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResult
     verb = "exceeds" if status is Status.CAUTION else "is within"
     return _res("harmonics", status, j.value_a, j.limit_a, "A", 1.0 - j.ratio,
                 f"The worst harmonic, the {j.worst_order}{_ordinal(j.worst_order)} at {_fmt_setting(r)}, is "
-                f"{j.value_a:.3f} A and {verb} the class {cls} limit of {j.limit_a:.2f} A"
+                f"{check_figure('harmonics', j.value_a, 'A')} and {verb} the class {cls} limit of "
+                f"{check_figure('harmonics', j.limit_a, 'A')}"
                 + (" (a product emission limit; this load would not pass it)." if status is Status.CAUTION else "."),
                 remedy=("Split the load over more dimmers or use lamps with power-factor correction."
                         if status is Status.CAUTION else None),
@@ -1115,5 +1157,6 @@ def check_dissipation(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResu
                     remedy="Use a dimmer with a higher rating or reduce the load.",
                     sources=("TRADE",), safety=True, details=details)
     return _res("dissipation", Status.PASS, p, allowance, "W", m,
-                f"The switch dissipates at most {p:.1f} W ({_fmt_setting(worst)}) against an allowance of {allowance:.1f} W.",
+                f"The switch dissipates at most {check_figure('dissipation', p, 'W')} ({_fmt_setting(worst)}) against "
+                f"an allowance of {check_figure('dissipation', allowance, 'W')}.",
                 sources=("TRADE",), safety=True, details=details)

@@ -6,8 +6,10 @@ part of every rendering that carries a verdict.
 """
 from __future__ import annotations
 
-import math
+import re
+import textwrap
 
+from compat.notation import check_figures, check_name, sources_text
 from compat.perception import cie_lightness, perceived_brightness
 from compat.report import Report
 from loads.circuit import Circuit
@@ -16,49 +18,47 @@ _VERDICT_TEXT = {"suitable": "SUITABLE", "suitable-with-cautions": "SUITABLE WIT
                  "unsuitable": "UNSUITABLE", "site-test-needed": "SITE TEST NEEDED"}
 
 
-def _num(x, unit: str = "") -> str:
-    if x is None or (isinstance(x, float) and not math.isfinite(x)):
-        return "—"
-    a = abs(x)
-    if a < 1e-12:                      # below any meaningful reading: numerical zero
-        x, a = 0.0, 0.0
-    if a == 0:
-        s = "0"
-    elif a >= 100:
-        s = f"{x:.0f}"
-    elif a >= 10:
-        s = f"{x:.1f}"
-    elif a >= 0.1:
-        s = f"{x:.2f}"
-    elif unit == "A" and a >= 1e-4:
-        return f"{1000 * x:.1f} mA"
-    else:
-        s = f"{x:.3g}"
-    return f"{s} {unit}".strip()
+# One line each, under the table and the report (the README says the same at length).
+MARGIN_NOTE = ("margin: how far inside (+) or outside (-) its limit a value is, as a share of the limit; "
+               "beyond 100 % as a ratio: \"32× the need\" is 32 times the least needed, "
+               "\"5.1× the limit\" 5.1 times the most allowed.")
+SAFETY_NOTE = "a safety matter: a failure here can damage equipment or trip protection"
 
 
-def _margin(m) -> str:
-    return "—" if m is None or not math.isfinite(m) else f"{100 * m:+.0f} %"
+# The terminal table's width: a terminal's default, and what a phone shows in landscape.
+TABLE_WIDTH = 80
+
+
+def _wrap(text: str, first: str, rest: str | None = None) -> list[str]:
+    """``text`` wrapped to TABLE_WIDTH, the first line after ``first``, the others
+    indented like it (or by ``rest``)."""
+    # a number stays on the line of its unit ("10 %", "42 A"): joined by a no-break
+    # space while wrapping (textwrap does not break there), then given back its space
+    kept = re.sub(r"(\d) (?=[%A-Za-zµΩ°×])", "\\1\u00a0", text)
+    out = textwrap.wrap(kept, TABLE_WIDTH, initial_indent=first, subsequent_indent=first if rest is None else rest,
+                        break_on_hyphens=False) or [first]
+    return [line.replace("\u00a0", " ") for line in out]
 
 
 def render_table(report: Report) -> str:
     """A plain-text table for a terminal: verdict, one line per check, cautions."""
     lines = [f"{report.circuit}", f"Verdict: {_VERDICT_TEXT.get(str(report.verdict), str(report.verdict))}", ""]
     head = ("check", "status", "value", "limit", "margin")
-    rows = [(c.id + (" *" if c.safety else ""), str(c.status), _num(c.value, c.unit), _num(c.limit, c.unit),
-             _margin(c.margin)) for c in report.checks]
+    rows = [(check_name(c), str(c.status), *check_figures(c)) for c in report.checks]
     widths = [max(len(r[i]) for r in rows + [head]) for i in range(5)]
     fmt = "  ".join("{:<%d}" % w for w in widths)
     lines.append(fmt.format(*head))
     lines.append(fmt.format(*("-" * w for w in widths)))
     for c, r in zip(report.checks, rows):
-        lines.append(fmt.format(*r))
-        lines.append("    " + c.message)
+        lines.append(fmt.format(*r).rstrip())
+        lines += _wrap(c.message, "    ")
         if c.remedy and str(c.status) in ("fail", "caution"):
-            lines.append("    remedy: " + c.remedy)
+            lines += _wrap("remedy: " + c.remedy, "    ")
         if c.deciding_input:
-            lines.append("    decided by: " + c.deciding_input)
-    lines += ["", "* a safety matter", "", "Cautions:"] + [f"  - {t}" for t in report.cautions]
+            lines += _wrap("decided by: " + c.deciding_input, "    ")
+    lines += ["", *_wrap(f"* {SAFETY_NOTE}", ""), *_wrap(MARGIN_NOTE, ""), "", "Cautions:"]
+    for t in report.cautions:
+        lines += _wrap(t, "  - ", "    ")
     return "\n".join(lines) + "\n"
 
 
@@ -88,6 +88,12 @@ def _inputs_md(circuit: Circuit) -> list[str]:
     return out + [""]
 
 
+CURVE_NOTE = ("light: share of the lamps' full light on a plain switch; perceived: how bright it looks, "
+              "by the square-root rule of dimming (IES Lighting Handbook); CIE L*: the CIE 1976 lightness of the "
+              "same light (0–100), for comparison; stable: every simulated half-cycle fired, latched and held, "
+              "with firing angles within 2°.")
+
+
 def render_markdown(report: Report, circuit: Circuit) -> str:
     """A Markdown report: inputs, every check with value, limit and margin, the dimming
     curve, remedies and cautions."""
@@ -96,32 +102,68 @@ def render_markdown(report: Report, circuit: Circuit) -> str:
     out += _inputs_md(circuit)
     out += ["## Checks", "", "| check | status | value | limit | margin | finding |", "|---|---|---|---|---|---|"]
     for c in report.checks:
-        name = c.id + (" (safety)" if c.safety else "")
+        name = check_name(c, " (safety)")
         finding = c.message + (f" Decided by {c.deciding_input}." if c.deciding_input else "")
-        out.append(f"| {name} | {c.status} | {_num(c.value, c.unit)} | {_num(c.limit, c.unit)} | {_margin(c.margin)} "
-                   f"| {_md_escape(finding)} |")
-    out.append("")
+        # no-break spaces keep "70.5 %" and "32× the need" on one line in a narrow viewer
+        value, limit, margin = (x.replace(" ", "\u00a0") for x in check_figures(c))
+        out.append(f"| {name} | {c.status} | {value} | {limit} | {margin} | {_md_escape(finding)} |")
+    out += ["", f"(safety) marks {SAFETY_NOTE}. {MARGIN_NOTE}", ""]
     if report.sweep:
         out += ["## Dimming curve", "",
-                "| direction | setting | firing angle | conduction | load V rms | load A rms | power W | light | perceived | L* | steady |",
+                "| direction | setting | firing angle | conduction | load V rms | load A rms | power W | light | perceived | CIE L* | stable |",
                 "|---|---|---|---|---|---|---|---|---|---|---|"]
         for r in report.sweep:
             lf = r["light_fraction"]
             fa = "—" if r["firing_angle_deg"] is None else f"{r['firing_angle_deg']:.0f}°"
             ca = "—" if r["conduction_angle_deg"] is None else f"{r['conduction_angle_deg']:.0f}°"
             out.append(f"| {r['direction']} | {r['setting']:.2f} | {fa} | {ca} | {r['load_rms_v']:.0f} | "
-                       f"{r['load_rms_a']:.3f} | {r['power_w']:.1f} | {100 * lf:.1f} % | "
-                       f"{100 * perceived_brightness(lf):.0f} % | {cie_lightness(lf):.0f} | "
+                       f"{r['load_rms_a']:.3f} | {r['power_w']:.1f} | {100 * lf:.1f}\u00a0% | "
+                       f"{100 * perceived_brightness(lf):.0f}\u00a0% | {cie_lightness(lf):.0f} | "
                        f"{'yes' if r['stable'] else 'no'} |")
-        out.append("")
+        out += ["", CURVE_NOTE, ""]
     remedies = [c for c in report.checks if c.remedy and str(c.status) in ("fail", "caution")]
     if remedies:
         out += ["## Remedies", ""] + [f"- **{c.id}**: {c.remedy}" for c in remedies] + [""]
     sources = sorted({k for c in report.checks for k in c.sources})
     if sources:
-        out += ["## Sources", "", ", ".join(sources), ""]
+        out += ["## Sources", ""] + [f"- {t}" for t in sources_text(sources).split("; ")] + [""]
     out += ["## Cautions", ""] + [f"- {t}" for t in report.cautions] + [""]
     return "\n".join(out)
+
+
+def count_text(c: dict) -> str:
+    """One lamp group's count limits from ``compat.sizing.count_limits``, in words."""
+    few, most = c["fewest"], c["most"]
+    if most is None:
+        return (f"now {c['count']}; no count passes: even one lamp fails a check of too much load "
+                "(rating, peaks, surge, breaker, harmonics or heat)")
+    if few is None:
+        return (f"now {c['count']}; no count passes: up to {most} the dimmer still misbehaves (minimum load, "
+                f"latching, holding, off-state, dimming range or flicker), above {most} it is overloaded")
+    return f"now {c['count']}; passes with {few} to {most}" if few < most else f"now {c['count']}; passes only with {few}"
+
+
+def correction_text(corr: dict) -> str:
+    """A proposed load-correction device as parts to buy."""
+    c_nf, r = 1e9 * corr["capacitance_f"], corr["resistance_ohm"]
+    cap = f"a {c_nf:.0f} nF capacitor" if c_nf < 1000 else f"a {c_nf / 1000:g} µF capacitor"
+    if corr.get("capacitor_class"):
+        volts = corr.get("capacitor_rated_voltage_v")
+        cap += (f" (class {corr['capacitor_class']}, rated {volts:.0f} V AC or more, "
+                f"{corr.get('capacitor_series', '')} ±{corr.get('capacitor_tolerance_pct', 0):.0f} %)"
+                if volts else f" (class {corr['capacitor_class']}, rated for the supply voltage)")
+    res = f"a {r:.0f} Ω resistor" if r < 1000 else f"a {r / 1000:g} kΩ resistor"
+    if corr.get("resistor_rating_w") is not None:
+        res += f" (±{corr.get('resistor_tolerance_pct', 0):.0f} %, {corr['resistor_rating_w']:g} W or more)"
+    text = (f"{cap} in series with {res}, across the lamps; it dissipates about {corr['loss_w']:.2f} W and carries "
+            f"{1000 * corr['rms_current_a']:.0f} mA")
+    if corr.get("verdict"):
+        text += (f"; with it the circuit is {corr['verdict']}"
+                 + (f" (still failing: {', '.join(corr['failing'])})" if corr.get("failing") else ""))
+        if corr.get("capacitor_tolerance_pct"):
+            text += (f", checked also with {corr['capacitor_tolerance_pct']:.0f} % less capacitance "
+                     "(the low end of its tolerance)")
+    return text + "."
 
 
 def render_sizing(result: dict) -> str:
@@ -131,16 +173,11 @@ def render_sizing(result: dict) -> str:
         lines.append("Failing now: " + ", ".join(result["failing"]))
     lines += ["", "Lamp counts (other groups unchanged):"]
     for name, c in result.get("counts", {}).items():
-        few = "none passes" if c["fewest"] is None else str(c["fewest"])
-        most = "none passes" if c["most"] is None else str(c["most"])
-        lines.append(f"  {name}: now {c['count']}; fewest that pass {few}; most that pass {most}")
+        lines.append(f"  {name}: {count_text(c)}")
     corr = result.get("correction")
     lines.append("")
     if corr:
-        lines.append(f"Load-correction device: {1e9 * corr['capacitance_f']:.0f} nF in series with "
-                     f"{corr['resistance_ohm']:.0f} Ω across the lamps; it dissipates about {corr['loss_w']:.2f} W "
-                     f"({1000 * corr['rms_current_a']:.0f} mA); with it the circuit is {corr.get('verdict', '?')}"
-                     + (f" (still failing: {', '.join(corr['failing'])})" if corr.get("failing") else "") + ".")
+        lines.append("Load-correction device: " + correction_text(corr))
     else:
         lines.append("Load-correction device: none suggested — nothing a bypass cures is failing, or no "
                      "R–C bypass up to 10 µF cures it.")

@@ -41,7 +41,25 @@ HIGH_SIDE = ("rating", "repetitive-peak", "inrush", "breaker", "harmonics", "dis
 CORRECTION_SPIKE_A = 1.0
 CORRECTION_C_RANGE_F = (10e-9, 10e-6)
 CORRECTION_REL_TOL = 0.05                 # engineering choice: 5 % on the capacitance
-PREFERRED_C_F = (10e-9, 15e-9, 22e-9, 33e-9, 47e-9, 68e-9)   # E6 series (common practice, no source)
+# Purchasable parts: IEC 60063 preferred numbers (from memory).  Capacitors in the E6
+# series, whose tolerance class is ±20 %; resistors in E12 values, sold at ±5 % or
+# better (common practice, no source).
+E6 = (1.0, 1.5, 2.2, 3.3, 4.7, 6.8)
+E12 = (1.0, 1.2, 1.5, 1.8, 2.2, 2.7, 3.3, 3.9, 4.7, 5.6, 6.8, 8.2)
+PREFERRED_C_F = tuple(10e-9 * b for b in E6)      # one decade of E6 capacitances
+CAPACITOR_SERIES, CAPACITOR_TOLERANCE = "E6", 0.20
+RESISTOR_SERIES, RESISTOR_TOLERANCE = "E12", 0.05
+# A capacitor connected across the mains is a class X2 safety capacitor (IEC 60384-14,
+# from memory); X2 parts are sold for 275 V and 305 V AC (common practice, no source),
+# chosen at or above the supply voltage plus 10 % (engineering choice: the supply
+# tolerance).
+X2_RATINGS_V = (275.0, 305.0)
+SUPPLY_TOLERANCE = 0.10
+# The resistor's power rating: at least twice its dissipation (common practice, no
+# source: a resistor run at half its rating stays cool enough to last), rounded up to
+# the ratings resistors are sold in.
+RESISTOR_POWER_MARGIN = 2.0
+RESISTOR_RATINGS_W = (0.25, 0.5, 1.0, 2.0, 3.0, 5.0, 10.0)
 # coarse scan: the E3 series over the range (engineering choice: 10 evaluations per resistor)
 CORRECTION_C_GRID_F = tuple(b * 10.0 ** e for e in range(-8, -4) for b in (1.0, 2.2, 4.7))
 
@@ -79,20 +97,42 @@ def correction_device(circuit: Circuit, capacitance_f: float, resistance_ohm: fl
 
 def _round_up_preferred(c: float) -> float:
     """The next E6 value at or above c [F]."""
-    decade = 10.0 ** math.floor(math.log10(c / 10e-9)) if c > 0 else 1.0
-    for base in PREFERRED_C_F + (100e-9,):
-        v = base * decade
-        if v >= c * (1 - 1e-9):
-            return v
-    return c
+    return round_up_series(c, E6)
+
+
+def round_up_series(x: float, series: tuple[float, ...]) -> float:
+    """The smallest value of a preferred-number series (one decade of mantissas) at or
+    above x."""
+    if x <= 0:
+        return x
+    decade = 10.0 ** math.floor(math.log10(x))
+    for scale in (decade, 10 * decade):
+        for base in series:
+            v = round(base * scale, 12 - int(math.floor(math.log10(base * scale))))
+            if v >= x * (1 - 1e-9):
+                return v
+    return x
 
 
 def correction_resistances_ohm(circuit: Circuit) -> tuple[float, ...]:
-    """Series resistors tried: the spike limit, then more resistive devices (engineering
-    choice: a mostly resistive bypass keeps its current in phase with the voltage, so
-    the switch holds to the end of the half-cycle, at the price of more heat)."""
-    r0 = circuit.supply.peak_v / CORRECTION_SPIKE_A
-    return (r0, 3 * r0, 10 * r0)
+    """Series resistors tried, as E12 values: the spike limit (rounded up, so the spike
+    stays within it), then more resistive devices (engineering choice: a mostly
+    resistive bypass keeps its current in phase with the voltage, so the switch holds
+    to the end of the half-cycle, at the price of more heat)."""
+    r0 = round_up_series(circuit.supply.peak_v / CORRECTION_SPIKE_A, E12)
+    return (r0, round_up_series(3 * r0, E12), round_up_series(10 * r0, E12))
+
+
+def x2_rating_v(supply_v: float) -> float | None:
+    """The X2 capacitor's rated AC voltage for this supply (None: above every class)."""
+    need = supply_v * (1 + SUPPLY_TOLERANCE)
+    return next((v for v in X2_RATINGS_V if v >= need), None)
+
+
+def resistor_rating_w(loss_w: float) -> float:
+    """The resistor's power rating: twice its loss, rounded up to a sold rating [W]."""
+    need = RESISTOR_POWER_MARGIN * loss_w
+    return next((w for w in RESISTOR_RATINGS_W if w >= need), math.ceil(need))
 
 
 _ALL = set(LOW_SIDE) | set(HIGH_SIDE) | {"edge-match", "dc-offset", "turn-off-surge"}
@@ -143,13 +183,18 @@ def smallest_correction(circuit: Circuit, simulator=None) -> dict | None:
     if best is None:
         return None
     c, r = best
-    # confirm on the full sweep (the search ran a coarser one); step up the E6 values
-    # until the full evaluation agrees, or give up at the top of the range
+    # confirm the part as bought on the full sweep (the search ran a coarser one): its
+    # E6 value, and that value at the low end of its tolerance (less capacitance, less
+    # current to carry the switch); step up the E6 values until both pass, or give up at
+    # the top of the range
     while True:
         dev = correction_device(circuit, c, r)
         fixed = dataclasses.replace(circuit, correction=dev, ranges=())
+        low = dataclasses.replace(circuit, correction=correction_device(circuit, c * (1 - CAPACITOR_TOLERANCE), r),
+                                  ranges=())
         full = evaluate(fixed, simulator=simulator)
-        if {x.id for x in full.checks if x.status is Status.FAIL} <= tolerated:
+        if ({x.id for x in full.checks if x.status is Status.FAIL} <= tolerated
+                and {x.id for x in evaluate(low, simulator=simulator).checks if x.status is Status.FAIL} <= tolerated):
             break
         bigger = _round_up_preferred(c * 1.01)
         if bigger > CORRECTION_C_RANGE_F[1] * (1 + 1e-9):
@@ -161,7 +206,11 @@ def smallest_correction(circuit: Circuit, simulator=None) -> dict | None:
     i = res.group_a[-1][-400 * 2:]
     loss = float(np.mean(i ** 2) * dev.resistance_ohm)
     return {"capacitance_f": c, "resistance_ohm": dev.resistance_ohm, "loss_w": loss,
-            "rms_current_a": float(np.sqrt(np.mean(i ** 2))), "device": dev}
+            "rms_current_a": float(np.sqrt(np.mean(i ** 2))), "device": dev,
+            "capacitor_series": CAPACITOR_SERIES, "capacitor_tolerance_pct": 100 * CAPACITOR_TOLERANCE,
+            "capacitor_class": "X2", "capacitor_rated_voltage_v": x2_rating_v(circuit.supply.voltage_v),
+            "resistor_series": RESISTOR_SERIES, "resistor_tolerance_pct": 100 * RESISTOR_TOLERANCE,
+            "resistor_rating_w": resistor_rating_w(loss)}
 
 
 def size(circuit: Circuit, progress=None, simulator=None) -> dict:

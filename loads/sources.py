@@ -23,7 +23,8 @@ class Source:
     """authors: people or body responsible; title: of the work; edition: edition,
     journal volume or version ("" if none); year: of publication (0 if not applicable);
     locator: where in the work (chapter, table, example, page); note: provenance and
-    caveats, "from memory, unverified" where recalled rather than read."""
+    caveats, "from memory, unverified" where recalled rather than read; short: the
+    title shown in reports (standard number, book and edition, "common practice")."""
 
     authors: str
     title: str
@@ -31,6 +32,7 @@ class Source:
     year: int = 0
     locator: str = ""
     note: str = ""
+    short: str = ""
 
 
 SOURCES: dict[str, Source] = {
@@ -42,6 +44,7 @@ SOURCES: dict[str, Source] = {
         year=2014,
         locator="chapter on AC voltage controllers",
         note="publisher and year from memory, unverified",
+        short="Power Electronics textbook, 4th ed. (2014)",
     ),
     "RASHID4_EX11_1": Source(
         authors="M. H. Rashid",
@@ -52,6 +55,7 @@ SOURCES: dict[str, Source] = {
                 "120 V, 60 Hz, R = 10 ohm, alpha = 90 deg)",
         note="printed results as transcribed by the project from the book; "
              "publisher and year from memory, unverified",
+        short="Power Electronics textbook, 4th ed. (2014), Example 11.1",
     ),
     "RASHID4_EX11_2": Source(
         authors="M. H. Rashid",
@@ -63,6 +67,7 @@ SOURCES: dict[str, Source] = {
         note="printed results as transcribed by the project from the book; a printed "
              "rms output voltage that differs from the waveform's is reported as an "
              "erratum; publisher and year from memory, unverified",
+        short="Power Electronics textbook, 4th ed. (2014), Example 11.2",
     ),
     "TEXTBOOK_TRIAC": Source(
         authors="various",
@@ -70,6 +75,7 @@ SOURCES: dict[str, Source] = {
         locator="latching and holding current; gate triggering",
         note="general textbook knowledge, no single text re-read; the figure "
              "'latching is typically 1.5-3x holding' is from memory, unverified",
+        short="power-electronics textbooks (triacs)",
     ),
     # --- tungsten ----------------------------------------------------------------
     "FORSYTHE_WORTHING_1925": Source(
@@ -82,6 +88,7 @@ SOURCES: dict[str, Source] = {
         note="values used as transcribed by the project from the CRC "
              "Handbook tabulation; the article title and the handbook edition from "
              "memory, unverified",
+        short="tungsten lamps, Astrophys. J. 61 (1925)",
     ),
     "TOLIAS_2017": Source(
         authors="P. Tolias",
@@ -93,6 +100,7 @@ SOURCES: dict[str, Source] = {
                 "hemispherical emissivity, isobaric heat capacity, density",
         note="coefficients as transcribed by the project from the paper; the paper "
              "was not re-read for this code",
+        short="tungsten properties, Nucl. Mater. Energy 13 (2017)",
     ),
     "WHITE_MINGES_1997": Source(
         authors="G. K. White and M. L. Minges",
@@ -101,6 +109,7 @@ SOURCES: dict[str, Source] = {
         year=1997,
         locator="p. 1269 ff.; tungsten resistivity (the data behind the TOLIAS_2017 fit)",
         note="cited through TOLIAS_2017; title from memory, unverified",
+        short="tungsten data, Int. J. Thermophys. 18 (1997)",
     ),
     "MATSUMOTO_1999": Source(
         authors="T. Matsumoto, A. Cezairliyan and D. Basak",
@@ -112,6 +121,7 @@ SOURCES: dict[str, Source] = {
         locator="p. 943 ff.; tungsten total hemispherical emissivity (the data behind "
                 "the TOLIAS_2017 fit)",
         note="cited through TOLIAS_2017; title from memory, unverified",
+        short="tungsten emissivity, Int. J. Thermophys. 20 (1999)",
     ),
     # --- constants, colour, light ------------------------------------------------
     "CODATA": Source(
@@ -122,6 +132,7 @@ SOURCES: dict[str, Source] = {
         locator="Stefan-Boltzmann constant, Planck constant, speed of light, "
                 "Boltzmann constant",
         note="read at run time from scipy.constants",
+        short="CODATA 2022 constants",
     ),
     "CIE15": Source(
         authors="Commission Internationale de l'Eclairage (CIE)",
@@ -131,6 +142,7 @@ SOURCES: dict[str, Source] = {
         locator="CIE standard illuminant A (Planckian radiator, about 2856 K); "
                 "CIE 1976 lightness L*",
         note="edition and year from memory, unverified",
+        short="CIE 15:2004 Colorimetry",
     ),
     "CIE_PHOTOPIC_V": Source(
         authors="Commission Internationale de l'Eclairage (CIE)",
@@ -142,6 +154,7 @@ SOURCES: dict[str, Source] = {
         note="the 10 nm values used in loads.filament were typed from memory, "
              "unverified against the printed table; the standard's designation from "
              "memory, unverified",
+        short="CIE 1924 V(λ)",
     ),
     "IES_HANDBOOK": Source(
         authors="Illuminating Engineering Society",
@@ -152,6 +165,7 @@ SOURCES: dict[str, Source] = {
                 "flicker index",
         note="lamp-law exponents from memory, unverified; flicker definitions as "
              "transcribed by the project",
+        short="IES Lighting Handbook",
     ),
     "IEEE1789_2015": Source(
         authors="IEEE",
@@ -161,6 +175,7 @@ SOURCES: dict[str, Source] = {
         year=2015,
         locator="low-risk and no-observable-effect regions of modulation vs frequency",
         note="region boundaries from memory, unverified",
+        short="IEEE Std 1789-2015 (LED flicker)",
     ),
     "CIE_TN006_2016": Source(
         authors="CIE",
@@ -172,6 +187,7 @@ SOURCES: dict[str, Source] = {
         note="formula and constants from memory, unverified (a public summary confirms the Minkowski "
              "form and SVM = 1 at the visibility threshold; validated in J. Opt. Soc. Am. A "
              "35(2), 309, 2018); the EU ecodesign cap SVM ≤ 0.4 (Regulation (EU) 2019/2020) also from memory",
+        short="CIE TN 006:2016 (stroboscopic effect)",
     ),
     "LRC_ASSIST_DIMMING": Source(
         authors="Lighting Research Center, Rensselaer Polytechnic Institute (ASSIST)",
@@ -179,6 +195,7 @@ SOURCES: dict[str, Source] = {
         locator="user-acceptance targets: dim to 5 % or lower; at full, at least 90 % "
                 "of the light on a plain switch",
         note="exact title and year from memory, unverified",
+        short="ASSIST recommends: lamp dimming",
     ),
     # --- standards ---------------------------------------------------------------
     "IEC60898_1": Source(
@@ -190,6 +207,7 @@ SOURCES: dict[str, Source] = {
         locator="time-current characteristics: instantaneous-trip bands B, C, D and the "
                 "conventional thermal test points",
         note="edition year not checked; table number from memory, unverified",
+        short="IEC 60898-1 (circuit-breakers)",
     ),
     "IEC61000_3_2": Source(
         authors="International Electrotechnical Commission",
@@ -198,6 +216,7 @@ SOURCES: dict[str, Source] = {
         edition="IEC 61000-3-2",
         locator="Class A limits (A); Class C limits (% of fundamental)",
         note="edition year not checked",
+        short="IEC 61000-3-2 (harmonic limits)",
     ),
     "IEC60725": Source(
         authors="International Electrotechnical Commission",
@@ -207,6 +226,7 @@ SOURCES: dict[str, Source] = {
         edition="IEC TR 60725",
         locator="reference impedance of the low-voltage supply",
         note=FROM_MEMORY,
+        short="IEC TR 60725 (supply impedance)",
     ),
     # --- the trade -----------------------------------------------------------------
     "TRADE": Source(
@@ -214,6 +234,7 @@ SOURCES: dict[str, Source] = {
         title="Common practice of the electrical trade",
         locator="",
         note="common practice, no source",
+        short="common practice, no source",
     ),
 }
 
@@ -239,6 +260,13 @@ def cite(key: str) -> str:
     if s.note:
         line += f" [{s.note}]"
     return line
+
+
+def short_title(key: str) -> str:
+    """The title shown in reports: standard number, book and edition, or "common
+    practice, no source" (the full title if no short one is given)."""
+    s = _entry(key)
+    return s.short or s.title
 
 
 def full(key: str) -> str:

@@ -49,10 +49,10 @@ class CircuitScreen(Screen):
         Binding("question_mark", "help", "Help", show=False),
         Binding("ctrl+s", "save", "Save", priority=True),
         Binding("f2", "save_as", "Save as", priority=True, show=False),
-        Binding("ctrl+o", "open", "Open", priority=True),
+        Binding("ctrl+o", "open", "Open", priority=True, show=False),
         Binding("ctrl+r", "export", "Export", priority=True, show=False),
         Binding("f3", "tab('edit')", "Circuit", priority=True, show=False),
-        Binding("f4", "tab('checks')", "Checks", priority=True),
+        Binding("f4", "tab('checks')", "Checks", priority=True, show=False),
         Binding("f5", "waveforms", "Waves", priority=True),
         Binding("f6", "curve", "Curve", priority=True),
         Binding("f7", "sizing", "Sizing", priority=True),
@@ -100,7 +100,8 @@ class CircuitScreen(Screen):
             with TabPane("Checks F4", id="checks"):
                 yield CheckList(id="check-list")
         yield CautionStrip(id="caution-strip")
-        yield Footer()
+        # compact, with the rarer keys only in the help (F1), so the footer fits 80 columns
+        yield Footer(compact=True)
 
     async def on_mount(self) -> None:
         self.query_one(CircuitOutline).show_circuit(self.circuit, "load:0" if self.circuit.loads else "supply")

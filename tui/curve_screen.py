@@ -3,7 +3,8 @@
 Drawn from the report's sweep rows (keys in docs/design.md, JSON output).  The markers are read off those
 rows for display: where the lamps go out dimming down (drop-out), where they come on
 brightening up (pop-on), knob travel that changes nothing (dead travel at either end),
-and settings whose half-cycles were not all alike (unstable).  The judgement of
+and settings that are not stable (``stable`` as the sweep defines it: every simulated
+half-cycle fired, latched and held, with firing angles within 2°).  The judgement of
 whether that is acceptable is the ``dimming-range`` check's, shown on the main screen.
 """
 from __future__ import annotations
@@ -16,7 +17,6 @@ from textual.containers import Horizontal
 from textual.screen import Screen
 from textual.widgets import Footer, Header, Static
 
-from tui.units import format_number
 
 # Engineering choice: below 0.5 % of full light a lamp is taken as out for marking.
 LIT_FRACTION = 0.005
@@ -24,10 +24,11 @@ LIT_FRACTION = 0.005
 TOP_DEAD_FRACTION = 0.98
 
 
-def perceived_brightness(light_fraction: float) -> float:
-    """Perceived brightness as CIE 1976 lightness L*/100 of a relative luminance
-    (CIE 15 colorimetry, L* = 116·Y^(1/3) − 16 above Y = (6/29)³, else (29/3)³·Y;
-    from memory) [1]."""
+def lightness_fraction(light_fraction: float) -> float:
+    """CIE 1976 lightness L*/100 of a relative luminance (CIE 15 colorimetry,
+    L* = 116·Y^(1/3) − 16 above Y = (6/29)³, else (29/3)³·Y; from memory) [1].  Drawn
+    beside the light for comparison; dimfit's "perceived" is the square-root rule
+    (``compat.perception``), shown in the reports."""
     y = max(light_fraction, 0.0)
     lightness = 116.0 * y ** (1.0 / 3.0) - 16.0 if y > (6.0 / 29.0) ** 3 else (29.0 / 3.0) ** 3 * y
     return lightness / 100.0
@@ -69,8 +70,8 @@ def curve_marks(rows) -> CurveMarks:
     return marks
 
 
-def _pct(value: float | None) -> str:
-    return "—" if value is None else f"{value * 100:.0f} %"
+def _setting(value: float | None, none: str = "none") -> str:
+    return none if value is None else f"{value:.2f}"
 
 
 class CurveScreen(Screen):
@@ -106,15 +107,21 @@ class CurveScreen(Screen):
         if not self.rows:
             return "No dimming curve yet:\nthe checks have not\nfinished (or gave\nno sweep)."
         m = self.marks
-        lines = ["[b]markers[/b]",
-                 f"drop-out   {_pct(m.dropout_setting)}",
-                 f"pop-on     {_pct(m.popon_setting)}",
-                 f"dead, low  {_pct(m.bottom_dead_travel)}",
-                 f"dead, top  {_pct(m.top_dead_travel)}",
-                 f"unstable   {len(m.unstable)} setting(s)"]
-        for direction, setting in m.unstable[:6]:
-            lines.append(f"  {'↓' if direction == 'down' else '↑'} {setting * 100:.0f} %")
-        lines += ["", "solid: light", "dots: perceived", "(CIE L*)", "x: unstable"]
+        full_from = None if m.top_dead_travel is None else 1.0 - m.top_dead_travel
+        lines = ["[b]settings[/b] (0 to 1)",
+                 f"goes out ↓ {_setting(m.dropout_setting)}",
+                 f"comes on ↑ {_setting(m.popon_setting)}",
+                 f"dark below {_setting(m.bottom_dead_travel, '—')}",
+                 f"full from  {_setting(full_from, '—')}",
+                 f"not stable {len(m.unstable) or 'none'}"]
+        for direction, setting in m.unstable[:5]:
+            lines.append(f"  {'↓' if direction == 'down' else '↑'} {setting:.2f}")
+        if len(m.unstable) > 5:
+            lines.append(f"  and {len(m.unstable) - 5} more")
+        lines += ["", "↓ turning down,", "↑ turning up;",
+                  "none: it never does.", "Not stable: the",
+                  "switch misfires or", "its timing wanders.",
+                  "", "solid: light", "dots: CIE L*", "x: not stable"]
         if self.stale:
             lines.append("\n(out of date: the\ncircuit has changed)")
         return "\n".join(lines)
@@ -128,28 +135,28 @@ class CurveScreen(Screen):
             rows = sorted((r for r in self.rows if r["direction"] == direction), key=lambda r: r["setting"])
             if not rows:
                 continue
-            x = [r["setting"] * 100 for r in rows]
+            x = [r["setting"] for r in rows]
             light = [r["light_fraction"] * 100 for r in rows]
             plt.plot(x, light, label=f"light {arrow}", marker="braille")
-            plt.plot(x, [perceived_brightness(r["light_fraction"]) * 100 for r in rows],
-                     label=f"perceived {arrow}", marker="dot")
+            plt.plot(x, [lightness_fraction(r["light_fraction"]) * 100 for r in rows],
+                     label=f"CIE L* {arrow}", marker="dot")
             bad = [r for r in rows if not r.get("stable", True)]
             if bad:
-                plt.scatter([r["setting"] * 100 for r in bad], [r["light_fraction"] * 100 for r in bad],
-                            marker="x", label=f"unstable {arrow}")
+                plt.scatter([r["setting"] for r in bad], [r["light_fraction"] * 100 for r in bad],
+                            marker="x", label=f"not stable {arrow}")
         m = self.marks
         if m.dropout_setting is not None:
-            plt.vline(m.dropout_setting * 100)
+            plt.vline(m.dropout_setting)
         if m.popon_setting is not None:
-            plt.vline(m.popon_setting * 100)
-        plt.xlim(0, 100)
+            plt.vline(m.popon_setting)
+        plt.xlim(0, 1)
         plt.ylim(0, 100)
-        plt.xlabel("setting [%]")
+        plt.xlabel("setting (0 lowest, 1 full)")
         plt.title("light [% of full]")
         plot.refresh()
 
 
 def describe_marks(marks: CurveMarks) -> str:
     """One line for tests and logs."""
-    return (f"drop-out {format_number((marks.dropout_setting or 0) * 100)} %, "
-            f"pop-on {format_number((marks.popon_setting or 0) * 100)} %")
+    return (f"goes out at {_setting(marks.dropout_setting)}, "
+            f"comes on at {_setting(marks.popon_setting)}")

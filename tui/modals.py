@@ -13,10 +13,11 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, DirectoryTree, Input, Label, OptionList, Static
 from textual.widgets.option_list import Option
 
+from compat.notation import check_figures, sources_text
 from compat.report import CheckResult, Status
 from loads.errors import InputError
 from tui.units import format_number
-from tui.widgets import STATUS_WORDS, format_margin, format_value
+from tui.widgets import STATUS_WORDS
 
 HELP_TEXT = """\
 [b]Anywhere[/b]
@@ -42,7 +43,7 @@ HELP_TEXT = """\
 
 [b]Checks[/b]: ↑ ↓ and Enter (or a click) open a check's explanation,
   sources and remedy.
-[b]Waveforms[/b]: [ ] move the setting by 5 %, { } by 1 %.
+[b]Waveforms[/b]: [ ] move the setting by 0.05, { } by 0.01.
 """
 
 
@@ -103,14 +104,15 @@ class CheckDetailsScreen(ModalScreen[None]):
             with VerticalScroll():
                 if self.stale:
                     yield Static("(from the last finished check; the circuit has changed since)", classes="stale-note")
-                yield Static(f"value {format_value(c.value, c.unit)}   limit {format_value(c.limit, c.unit)}   "
-                             f"margin {format_margin(c.margin)}", classes="details-figures")
+                value, limit, margin = check_figures(c)
+                yield Static(f"value {value}   limit {limit}   margin {margin}", classes="details-figures",
+                             markup=False)
                 yield Static(c.message, classes="details-message", markup=False)
                 if c.deciding_input:
                     yield Static(f"Decided by the range given for [b]{c.deciding_input}[/b].")
                 yield Static(f"[b]Remedy:[/b] {c.remedy or 'none needed' if c.status is Status.PASS else c.remedy or 'none known'}",
                              classes="details-remedy")
-                yield Static(f"[b]Sources:[/b] {', '.join(c.sources) if c.sources else 'none given'}",
+                yield Static(f"[b]Sources:[/b] {sources_text(c.sources) if c.sources else 'none given'}",
                              classes="details-sources")
                 if c.safety:
                     yield Static("This is a safety check. " + " ".join(self.cautions), classes="cautions-alarm")

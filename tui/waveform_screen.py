@@ -58,7 +58,7 @@ def waveform_figures(result) -> dict[str, float | None]:
 class WaveformScreen(Screen):
     BINDINGS = [
         Binding("escape,q", "app.pop_screen", "Back"),
-        Binding("left_square_bracket", "step(-1)", "Dimmer", key_display="["),
+        Binding("left_square_bracket", "step(-1)", "Darker", key_display="["),
         Binding("right_square_bracket", "step(1)", "Brighter", key_display="]"),
         Binding("left_curly_bracket", "step(-0.2)", "Fine -", show=False),
         Binding("right_curly_bracket", "step(0.2)", "Fine +", show=False),
@@ -90,7 +90,7 @@ class WaveformScreen(Screen):
                 yield make_plot(id="plot-voltage")
                 yield make_plot(id="plot-current")
             yield Static("", id="wave-figures")
-        yield Static("Live-circuit scope work: differential probes or an isolated supply only. F8 cautions.",
+        yield Static("Scope on a live circuit: differential probes or isolated supply. F8 more",
                      id="wave-caution", classes="cautions-line")
         yield Footer()
 
@@ -184,7 +184,7 @@ class WaveformScreen(Screen):
 
     def _show(self, error: str | None = None) -> None:
         bar = "█" * int(round(self.setting * 10)) + "░" * (10 - int(round(self.setting * 10)))
-        lines = [f"[b]setting[/b] {self.setting * 100:.0f} %", bar, ""]
+        lines = [f"[b]setting[/b] {self.setting:.2f}", bar, ""]
         waiting = self.figures is None or self._timer is not None
         if error:
             lines.append(f"cannot simulate:\n{error}")
@@ -202,16 +202,16 @@ class WaveformScreen(Screen):
                 "[b]peaks[/b]",
                 f" supply {format_quantity(f['supply_peak_v'], 'V', '', 3)}",
                 f" load   {format_quantity(f['load_peak_v'], 'V', '', 3)}",
-                f" load   {format_quantity(f['load_peak_a'], 'A', digits=3)}",
+                f" load   {format_quantity(f['load_peak_a'], 'A', '', 3)}",
                 "",
                 "[b]rms, last cycle[/b]",
                 f" load   {format_quantity(f['load_rms_v'], 'V', '', 3)}",
-                f" load   {format_quantity(f['load_rms_a'], 'A', digits=3)}",
+                f" load   {format_quantity(f['load_rms_a'], 'A', '', 3)}",
                 f" power  {format_quantity(f['power_w'], 'W', '', 3)}",
             ]
             if waiting:
                 lines.append("\n(updating…)")
-        lines.append("\n[ ] setting · esc back")
+        lines.append("\n\\[ darker  ] brighter\n{ } finely · esc back")
         self.query_one("#wave-figures", Static).update("\n".join(lines))
 
     def on_unmount(self) -> None:

@@ -23,11 +23,12 @@ from textual.widget import Widget
 from textual.widgets import Input, Label, ListItem, ListView, OptionList, ProgressBar, Select, Static
 from textual.widgets.option_list import Option
 
+from compat.notation import check_figures
 from compat.report import CheckResult, Report, Status, Verdict
 from loads.errors import InputError
 from tui.fields import (SUPPLY_PRESETS, FieldSpec, error_text, field_text, fields_for, get_value, parse_field,
                         with_value)
-from tui.units import UNIT_SPELLINGS, format_number, format_quantity
+from tui.units import format_number, format_quantity
 
 
 # ---------------------------------------------------------------- outline
@@ -62,12 +63,12 @@ class CircuitOutline(OptionList):
     """The circuit's parts; highlight one to edit it."""
 
     BINDINGS = [
-        Binding("a", "add", "Add lamps"),
-        Binding("plus,equals_sign", "count(1)", "+1", key_display="+"),
-        Binding("minus", "count(-1)", "-1", key_display="-"),
+        Binding("a", "add", "Add"),
+        Binding("plus,equals_sign", "count(1)", "+1", key_display="+", show=False),
+        Binding("minus", "count(-1)", "-1", key_display="-", show=False),
         Binding("d", "duplicate", "Copy"),
         Binding("delete,x", "remove", "Remove"),
-        Binding("p", "profile", "Save profile"),
+        Binding("p", "profile", "Save profile", show=False),
         Binding("f", "fit", "Fit correction", show=False),
     ]
 
@@ -377,18 +378,6 @@ class VerdictBar(Horizontal):
             bar.update(total=1.0, progress=fraction)
 
 
-def format_value(value: float | None, unit: str) -> str:
-    if value is None:
-        return "—"
-    if unit in UNIT_SPELLINGS and unit not in ("%", "°", "K", "°C"):
-        return format_quantity(value, unit, digits=3)
-    return f"{format_number(value, 3)} {unit}".strip()
-
-
-def format_margin(margin: float | None) -> str:
-    if margin is None:
-        return "—"
-    return f"{margin * 100:+.0f} %"
 
 
 class CheckItem(ListItem):
@@ -400,10 +389,11 @@ class CheckItem(ListItem):
         c = self.check
         with Horizontal(classes="check-line"):
             yield Label(STATUS_WORDS.get(c.status, str(c.status)), classes="c-status")
+            value, limit, margin = check_figures(c)
             yield Label(c.id + (" ⚠" if c.safety and c.status is Status.FAIL else ""), classes="c-id")
-            yield Label(format_value(c.value, c.unit), classes="c-value")
-            yield Label(format_value(c.limit, c.unit), classes="c-limit")
-            yield Label(format_margin(c.margin), classes="c-margin")
+            yield Label(value, classes="c-value")
+            yield Label(limit, classes="c-limit")
+            yield Label(margin, classes="c-margin")
 
 
 class CheckList(Vertical):
@@ -446,5 +436,4 @@ class CautionStrip(Static):
             self.update(f"⚠ SAFETY: {', '.join(failing_safety)} fails. {cautions[0] if cautions else ''} "
                         f"Isolate and prove dead before work. [b]F8[/b] all cautions")
         else:
-            self.update("Cautions: qualified persons only · isolate and prove dead · local rules and makers' "
-                        "instructions first · figures are estimates · [b]F8[/b] more")
+            self.update("Cautions: qualified persons only · isolate, prove dead · [b]F8[/b] all of them")

@@ -7,7 +7,8 @@ import pytest
 from compat import breaker_band
 from compat.evaluate import evaluate
 from compat.report import Status, Verdict
-from compat.sizing import _round_up_preferred, smallest_correction
+from compat.sizing import (E6, E12, _round_up_preferred, correction_resistances_ohm, resistor_rating_w, round_up_series,
+                           smallest_correction, x2_rating_v)
 from compat.switch_on import breaker_max_counts, max_passing, min_passing, switch_on_surge
 from loads.breaker import Breaker
 from loads.circuit import Circuit
@@ -41,6 +42,23 @@ def test_preferred_capacitors():
     assert _round_up_preferred(2.1e-6) == pytest.approx(2.2e-6)
 
 
+@pytest.mark.analytic
+def test_parts_are_purchasable():
+    # IEC 60063 E12 series 10 12 15 18 22 27 33 39 47 56 68 82 (from memory)
+    assert round_up_series(325.3, E12) == pytest.approx(330.0)
+    assert round_up_series(990.0, E12) == pytest.approx(1000.0)
+    assert round_up_series(83.0, E12) == pytest.approx(100.0)
+    assert round_up_series(4.7e-6, E6) == pytest.approx(4.7e-6)
+    # the resistors the search tries on 230 V are E12 values, and the first still holds the
+    # firing spike to 1 A at the mains peak (325 V / 330 Ω = 0.99 A)
+    c = Circuit(loads=(ElectronicDriver(name="drv", count=1, rated_power_w=8.0),))
+    assert correction_resistances_ohm(c) == pytest.approx((330.0, 1000.0, 3300.0))
+    # X2 class for the supply plus 10 %; resistor rated at twice its loss, rounded up
+    assert x2_rating_v(230.0) == 275.0 and x2_rating_v(120.0) == 275.0 and x2_rating_v(277.0) == 305.0
+    assert x2_rating_v(400.0) is None
+    assert resistor_rating_w(0.15) == 0.5 and resistor_rating_w(0.1) == 0.25 and resistor_rating_w(0.9) == 2.0
+
+
 @pytest.mark.slow
 def test_breaker_count_is_the_boundary_in_the_simulation():
     # IEC 60898-1 band, judged by peak and the release's response; the count found
@@ -71,6 +89,15 @@ def test_correction_device_sized_by_search_makes_failing_led_circuit_pass():
     fixed = evaluate(dataclasses.replace(c, correction=corr["device"]))
     assert not [x.id for x in fixed.checks if x.status is Status.FAIL]
     assert 0 < corr["loss_w"] < 5.0
+    # the confirmed part is the one to buy: E6 capacitance, E12 resistance, X2, rated power
+    assert corr["device"].series_capacitance_f == corr["capacitance_f"]
+    assert any(corr["capacitance_f"] == pytest.approx(b * 10.0 ** e) for b in E6 for e in range(-9, -5))
+    assert any(corr["resistance_ohm"] == pytest.approx(b * 10.0 ** e) for b in E12 for e in range(1, 5))
+    assert corr["capacitor_class"] == "X2" and corr["capacitor_rated_voltage_v"] == 275.0
+    assert corr["resistor_rating_w"] >= 2 * corr["loss_w"]
+    # and it still passes at the low end of the capacitor's tolerance
+    low = dataclasses.replace(corr["device"], series_capacitance_f=0.8 * corr["capacitance_f"])
+    assert not [x.id for x in evaluate(dataclasses.replace(c, correction=low)).checks if x.status is Status.FAIL]
 
 
 @pytest.mark.slow

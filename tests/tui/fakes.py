@@ -65,7 +65,7 @@ def canned_report(circuit: Circuit, *, fail_safety: bool = False) -> Report:
                     limit=circuit.dimmer.min_load_w, unit="W", margin=total_w / circuit.dimmer.min_load_w - 1,
                     message="Total load against the dimmer's minimum.",
                     remedy=None if min_ok else "Add load or fit a correction device."),
-        CheckResult(id="holding", status=Status.CAUTION, value=0.021, limit=0.025, unit="A", margin=-0.16,
+        CheckResult(id="holding", status=Status.CAUTION, value=142.0, limit=170.0, unit="deg", margin=-0.16,
                     message="Conduction may end early at low settings.", remedy="Fit a correction device.",
                     sources=("TEST_TRIAC",)),
         CheckResult(id="inrush", status=Status.FAIL if fail_safety else Status.PASS, value=95.0, limit=80.0,

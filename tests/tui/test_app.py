@@ -352,7 +352,7 @@ async def test_waveform_screen_moves_the_setting_from_the_keyboard():
         await wait_for(pilot, lambda: waves.figures is not None and waves._timer is None
                        and waves.figures["firing_angle_deg"] == pytest.approx(76.0))
         text = str(waves.query_one("#wave-figures").render())
-        assert "setting 60 %" in text and "76°" in text
+        assert "setting 0.60" in text and "76°" in text and "[ darker  ] brighter" in text
         await pilot.press("escape")
         await wait_for(pilot, lambda: isinstance(app.screen, CircuitScreen))
 
