@@ -959,7 +959,7 @@ def check_dimming_range(circuit: Circuit, down: Sequence[SettingRun], up: Sequen
     # Engineering choice: protection acting at half the settings or more leaves no
     # dimming range worth the name; at fewer, the range is judged on the rest, with a caution.
     if trips is not None and trips[1] >= 0.5:
-        return _res("dimming-range", Status.FAIL, None, 100 * DIM_TARGET_LOW, "%", None,
+        return _res("dimming-range", Status.FAIL, 0.0, 100 * DIM_TARGET_LOW, "%", None,
                     trips[0] + "; there is no usable dimming range.",
                     remedy="Fewer capacitor-input lamps on this dimmer, or a dimmer with a higher rating (and trip level).",
                     sources=("LRC_ASSIST_DIMMING",), details=details)
