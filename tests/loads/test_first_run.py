@@ -26,10 +26,10 @@ def _dispatchers():
 @pytest.mark.regression
 def test_every_compiled_function_keeps_nrt_off():
     # regression (our own convention): every compiled function of the simulator but
-    # run (it allocates its work arrays) and _bail_forward (declared without it) has
+    # run (it allocates its work arrays) is declared with
     # _nrt=False (no reference counting: 30x less call overhead); numba must still
     # carry the flag as a target option
-    allocating = {"loads.kernel.run", "loads.kernel._bail_forward"}
+    allocating = {"loads.kernel.run"}
     found = dict(_dispatchers())
     assert allocating <= set(found) and len(found) > 30
     off = {name for name, d in found.items() if d.targetoptions.get("_nrt") is False}
