@@ -1032,40 +1032,16 @@ def _bail_forward(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M
 
 
 # --- the phases of one step of ``run`` ---------------------------------------------------
+# Event location and the mode update after an event are functions; the phases every
+# step goes through (step attempt, recording, the timed events) are named sections of
+# ``run``: as separate functions (with ~30 array arguments each; numba would not inline
+# them) they made the reference cases ~30 % slower (tests.bench's cases, min of 15 runs).
 
 @numba.njit(cache=True, _nrt=False)
 def _copy_into(dst, src):
     """dst[:] = src without numba's temporary copy (which needs its runtime)."""
     for i in range(src.shape[0]):
         dst[i] = src[i]
-
-
-@numba.njit(cache=True, _nrt=False)
-def _attempt_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
-                  yg, y1, Fg, F1, A, piv, G, rhs, est, work, nstate, jac_age, counters):
-    """Step attempt: TR-BDF2 steps from t, shrinking h until the error test passes (the
-    Jacobian refreshed once if Newton fails on a kept one).  Returns (error, h, whether
-    a step was rejected, Jacobian age); h < 1e-12 means the step collapsed."""
-    rejected = False
-    while True:
-        err = trbdf2_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
-                          yg, y1, Fg, F1, A, piv, G, rhs, est, nstate)
-        if err <= 1.0:
-            break
-        counters[1] += 1
-        rejected = True
-        if np.isinf(err):
-            h *= 0.25
-            if jac_age > 1:
-                jacobian(t, y, F0, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F1)
-                nstate[0] = -1.0
-                jac_age = 1
-                h *= 4.0
-        else:
-            h *= max(0.2, 0.9 * err ** (-1.0 / 3.0))
-        if h < 1e-12:
-            break
-    return err, h, rejected, jac_age
 
 
 @numba.njit(cache=True, _nrt=False)
@@ -1135,75 +1111,6 @@ def _locate_event(t, h, ng0, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP
 
 
 @numba.njit(cache=True, _nrt=False)
-def _record_step(t, h, yg, y1, o0, og, o1, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, OUT, ks, t_samp0, dt_samp):
-    """Recording: the half-cycle sums over the accepted step [t, t + h] and every output
-    sample inside it (quadratic through the step's three points); returns the next
-    sample's index."""
-    outputs(t + GAMMA * h, yg, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, og)
-    outputs(t + h, y1, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o1)
-    _accumulate(t, h, o0, og, o1, P, IP, S, Q, HC, gk, gpo, gnp, GP)
-    no = OUT.shape[1]
-    while ks < OUT.shape[0] and t_samp0 + ks * dt_samp <= t + h + 1e-15:
-        x = (t_samp0 + ks * dt_samp - t) / h
-        # quadratic through (0, o0), (γ, og), (1, o1)
-        l0 = (x - GAMMA) * (x - 1.0) / GAMMA
-        lg = x * (x - 1.0) / (GAMMA * (GAMMA - 1.0))
-        l1 = x * (x - GAMMA) / (1.0 - GAMMA)
-        for c in range(no):
-            OUT[ks, c] = l0 * o0[c] + lg * og[c] + l1 * o1[c]
-        ks += 1
-    return ks
-
-
-@numba.njit(cache=True, _nrt=False)
-def _timed_events(t, t_hb, half, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
-    """Mode update, part 1: the events due at t by the clock (gate window end, trailing
-    turn-off and its ramp's end, a dip's end, the half-cycle boundary, the firing).
-    Returns (whether one happened, the next half-cycle boundary)."""
-    timed = False
-    if IP[CONTROL] == PHASE and IP[EDGE] == LEADING and S[GATE] != 0 and abs(t - Q[GATE_END]) < 1e-12:
-        if IP[GDRIVE] == UNTIL_LATCHED and S[LATCHED] == 0:
-            Q[GATE_END] = np.inf     # driven on until it latches or the half-cycle ends
-        else:
-            S[GATE] = 0
-        timed = True
-    if abs(t - Q[T_OFF]) < 1e-12:
-        Q[T_OFF] = np.inf
-        if S[SW_ON] == 1:
-            _start_turn_off(t, y, P, S, Q, HC)
-        timed = True
-    if S[SW_ON] == RAMPING and abs(t - Q[T_RAMP_END]) < 1e-12:
-        Q[T_RAMP_END] = np.inf
-        _record_off(t - 0.5 * P[TRAMP], S, Q, HC, P, False, y, False)
-        timed = True
-    if S[LATCHED] == DIPPING and abs(t - Q[T_DIP_END]) < 1e-12:
-        timed = True           # the dip has lasted the turn-off time (see update_modes)
-    if abs(t - t_hb) < 1e-12:
-        if IP[GDRIVE] == UNTIL_LATCHED and S[GATE] != 0 and Q[GATE_END] == np.inf:
-            # a drive held past its window ends with its half-cycle; a switch that has
-            # not latched by then stops conducting
-            S[GATE] = 0
-            if S[SW_ON] != 0 and S[LATCHED] == 0:
-                if S[HCIDX] < HC.shape[0]:
-                    HC[S[HCIDX], H_FAILED] += 1.0
-                _chop_loads(y, y[ISW], IP, gk, gxo, gpo, gnp, gn, GP)
-                _record_off(t, S, Q, HC, P, True, y, False)
-        _end_half_cycle(t, P, IP, S, Q, gk, gpo, gnp, GP)
-        S[HCIDX] += 1
-        _start_half_cycle(t, P, IP, S, Q, HC)
-        if IP[EDGE] == TRAILING and IP[NOFIRE] == 0 and S[SW_ON] == 0:
-            S[SW_ON] = 1
-            S[FIRE_HC] = S[HCIDX]
-            _record_firing(t, S, Q, HC, P)
-        t_hb += half
-        timed = True
-    if abs(t - Q[T_FIRE]) < 1e-12:
-        _fire_phase(t, y, P, IP, S, Q, HC)
-        timed = True
-    return timed, t_hb
-
-
-@numba.njit(cache=True, _nrt=False)
 def _settle_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F0, G, work, F1, rhs,
                   nstate):
     """Mode update, part 2: modes and a consistent state at t, alternated until the
@@ -1226,10 +1133,10 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
     accepted steps, counters[1] the rejected ones, counters[2] the located events.
     Returns 0 on success, 1 if the step size collapsed.
 
-    Each step: the next time event bounds it; step attempt (``_attempt_step``); event
+    Each step, in named sections: the next time event bounds it; step attempt; event
     location if a guard changed sign (``_locate_event``); where neither converges, the
-    1 ns bail-out (``_bail_forward``); recording (``_record_step``); mode update
-    (``_timed_events``, ``_settle_modes``)."""
+    1 ns bail-out (``_bail_forward``, one place); recording; mode update (the timed
+    events, then ``_settle_modes``)."""
     n = y.shape[0]
     no = OUT.shape[1]
     M = np.zeros(n)
@@ -1329,10 +1236,26 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         if fresh:
             outputs(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o0)
             fresh = False
-        # step attempt
-        err, h, rejected, jac_age = _attempt_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
-                                                  scale, yg, y1, Fg, F1, A, piv, G, rhs, est, work, nstate, jac_age,
-                                                  counters)
+        # --- step attempt: TR-BDF2 steps from t, shrinking h until the error test passes
+        rejected = False
+        while True:
+            err = trbdf2_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
+                              yg, y1, Fg, F1, A, piv, G, rhs, est, nstate)
+            if err <= 1.0:
+                break
+            counters[1] += 1
+            rejected = True
+            if np.isinf(err):
+                h *= 0.25
+                if jac_age > 1:
+                    jacobian(t, y, F0, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F1)
+                    nstate[0] = -1.0
+                    jac_age = 1
+                    h *= 4.0
+            else:
+                h *= max(0.2, 0.9 * err ** (-1.0 / 3.0))
+            if h < 1e-12:
+                break
         # the step collapsed (a kink the Newton iteration cannot cross)
         bail = h < 1e-12
         crossed = False
@@ -1344,7 +1267,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
                 fac = min(fac, 1.0)   # no growth right after a rejection (fewer repeat rejections)
             if 1.0 <= fac <= HOLD_FAC:
                 fac = 1.0             # small growth is not worth a new factorisation
-            # event location: did any guard change sign?
+            # --- event location: did any guard change sign?
             guards(y1, P, IP, S, gk, gxo, gpo, gnp, GP, g1)
             for i in range(ng0):
                 if (g0[i] < 0.0) != (g1[i] < 0.0):
@@ -1356,6 +1279,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
                                         yhi, yghi)
                 if not bail:
                     counters[2] += 1
+        # --- bail-out
         if bail:
             # no converging step reaches past here: take one backward-Euler step of 1 ns
             # past it, refresh the modes and go on
@@ -1367,16 +1291,68 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             jac_age = JAC_AGE
             h = 1e-8
             continue
-        # recording: accept the step [t, t + h]
-        ks = _record_step(t, h, yg, y1, o0, og, o1, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, OUT, ks,
-                          t_samp0, dt_samp)
+        # --- recording: accept the step [t, t + h]; its half-cycle sums and every output
+        # sample inside it
+        outputs(t + GAMMA * h, yg, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, og)
+        outputs(t + h, y1, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o1)
+        _accumulate(t, h, o0, og, o1, P, IP, S, Q, HC, gk, gpo, gnp, GP)
+        while ks < OUT.shape[0] and t_samp0 + ks * dt_samp <= t + h + 1e-15:
+            x = (t_samp0 + ks * dt_samp - t) / h
+            # quadratic through (0, o0), (γ, og), (1, o1)
+            l0 = (x - GAMMA) * (x - 1.0) / GAMMA
+            lg = x * (x - 1.0) / (GAMMA * (GAMMA - 1.0))
+            l1 = x * (x - GAMMA) / (1.0 - GAMMA)
+            for c in range(no):
+                OUT[ks, c] = l0 * o0[c] + lg * og[c] + l1 * o1[c]
+            ks += 1
         Q[DIDT] = (y1[ISW] - y[ISW]) / h      # the switch current's slope over the last step
         t = t + h
         y[:] = y1
         o0[:] = o1
         counters[0] += 1
-        # mode update
-        timed, t_hb = _timed_events(t, t_hb, half, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP)
+        # --- mode update: the events due at t by the clock (gate window end, trailing
+        # turn-off and its ramp's end, a dip's end, the half-cycle boundary, the firing),
+        # then the modes and a consistent state after any event
+        timed = False
+        if IP[CONTROL] == PHASE and IP[EDGE] == LEADING and S[GATE] != 0 and abs(t - Q[GATE_END]) < 1e-12:
+            if IP[GDRIVE] == UNTIL_LATCHED and S[LATCHED] == 0:
+                Q[GATE_END] = np.inf     # driven on until it latches or the half-cycle ends
+            else:
+                S[GATE] = 0
+            timed = True
+        if abs(t - Q[T_OFF]) < 1e-12:
+            Q[T_OFF] = np.inf
+            if S[SW_ON] == 1:
+                _start_turn_off(t, y, P, S, Q, HC)
+            timed = True
+        if S[SW_ON] == RAMPING and abs(t - Q[T_RAMP_END]) < 1e-12:
+            Q[T_RAMP_END] = np.inf
+            _record_off(t - 0.5 * P[TRAMP], S, Q, HC, P, False, y, False)
+            timed = True
+        if S[LATCHED] == DIPPING and abs(t - Q[T_DIP_END]) < 1e-12:
+            timed = True           # the dip has lasted the turn-off time (see update_modes)
+        if abs(t - t_hb) < 1e-12:
+            if IP[GDRIVE] == UNTIL_LATCHED and S[GATE] != 0 and Q[GATE_END] == np.inf:
+                # a drive held past its window ends with its half-cycle; a switch that has
+                # not latched by then stops conducting
+                S[GATE] = 0
+                if S[SW_ON] != 0 and S[LATCHED] == 0:
+                    if S[HCIDX] < HC.shape[0]:
+                        HC[S[HCIDX], H_FAILED] += 1.0
+                    _chop_loads(y, y[ISW], IP, gk, gxo, gpo, gnp, gn, GP)
+                    _record_off(t, S, Q, HC, P, True, y, False)
+            _end_half_cycle(t, P, IP, S, Q, gk, gpo, gnp, GP)
+            S[HCIDX] += 1
+            _start_half_cycle(t, P, IP, S, Q, HC)
+            if IP[EDGE] == TRAILING and IP[NOFIRE] == 0 and S[SW_ON] == 0:
+                S[SW_ON] = 1
+                S[FIRE_HC] = S[HCIDX]
+                _record_firing(t, S, Q, HC, P)
+            t_hb += half
+            timed = True
+        if abs(t - Q[T_FIRE]) < 1e-12:
+            _fire_phase(t, y, P, IP, S, Q, HC)
+            timed = True
         event = crossed or timed
         if event and crossed and not timed and _modes_neutral(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, snap):
             # the crossing changed only what the guards watch (latching, carrying, re-arming),
