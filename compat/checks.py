@@ -1046,7 +1046,8 @@ def check_flicker(circuit: Circuit, runs: Sequence[SettingRun], weights) -> Chec
         # light below the mains frequency; slower content there is a lamp still
         # settling after the change of setting (engineering choice).
         fmin = 0.99 * r.result.frequency_hz if (_clean(r, circuit.dimmer.edge) or _alike(r)) else 0.0
-        a = flicker.assess(x, r.sample_rate_hz, drift_period_samples=half, min_frequency_hz=fmin)
+        a = r.memo(("flicker", fmin, x.tobytes()),
+                   lambda: flicker.assess(x, r.sample_rate_hz, drift_period_samples=half, min_frequency_hz=fmin))
         ref = reference_lamp.filament_svm(circuit, float(np.mean(x)))
         per.append((r, a, ref))
     worst_r, worst, _ = max(per, key=lambda p: p[1].low_risk_ratio)

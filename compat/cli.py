@@ -7,6 +7,7 @@
     dimfit size FILE [--json]
     dimfit demo [PATH]           write the demo circuit, then check it
     dimfit catalogue             the built-in archetypes
+    dimfit selftest              compile the simulator now and check it on a closed form
 
 Exit codes: 0 done (``check``: suitable, cautions allowed); 1 ``check`` found the
 circuit unsuitable or a site test needed; 2 bad input (one line on stderr, never a
@@ -58,6 +59,18 @@ def _fail(message: str) -> int:
     return 2
 
 
+COMPILING = f"{PROG}: compiling the simulator (first run only, about 30 s)…"
+
+
+def _simulator():
+    """``loads.simulation``, set to print COMPILING on stderr the moment it starts
+    compiling the integrator (a first run only)."""
+    from loads import simulation
+
+    simulation.compile_notice = lambda: print(COMPILING, file=sys.stderr, flush=True)
+    return simulation
+
+
 def _read(path: str):
     from loads.files import read_circuit
 
@@ -89,6 +102,7 @@ def _check_and_print(circuit, *, as_json: bool = False, as_markdown: bool = Fals
     try:
         from compat.evaluate import evaluate
         from compat.render import render_markdown, render_table
+        _simulator()
     except ImportError as err:
         return _fail(f"the checks are not available in this installation ({err})")
     from compat.report import Verdict
@@ -193,7 +207,7 @@ def cmd_simulate(args) -> int:
         return _fail(f"simulate: --cycles {args.cycles} is outside 1–1000")
     circuit = _read(args.file)
     try:
-        from loads.simulation import simulate
+        simulate = _simulator().simulate
     except ImportError as err:
         return _fail(f"the simulator is not available in this installation ({err})")
     result = simulate(circuit, setting=args.setting, firing_angle_deg=args.firing_angle,
@@ -229,7 +243,7 @@ def cmd_sweep(args) -> int:
         return _fail(f"sweep: --points {args.points} is outside 2–1001")
     circuit = _read(args.file)
     try:
-        from loads.simulation import sweep
+        sweep = _simulator().sweep
     except ImportError as err:
         return _fail(f"the simulator is not available in this installation ({err})")
     ascending = [i / (args.points - 1) for i in range(args.points)]
@@ -266,6 +280,7 @@ def cmd_size(args) -> int:
     try:
         from compat.render import render_sizing
         from compat.sizing import size
+        _simulator()
     except ImportError as err:
         return _fail(f"sizing is not available in this installation ({err})")
     result = size(circuit, progress=_progress("sizing"))
@@ -296,6 +311,14 @@ def _summary(obj) -> str:
     if isinstance(obj, Dimmer):
         return f"{obj.edge.value} edge, {obj.wiring.value}, {obj.control.value}, {obj.rated_load_w:g} W, min {obj.min_load_w:g} W"
     return f"{obj.kind.value}, {obj.rated_power_w:g} W {obj.rated_voltage_v:g} V"
+
+
+def cmd_selftest(args) -> int:
+    from compat import selftest
+
+    ok, line = selftest.run(_simulator())
+    print(f"{PROG} selftest: {line}")
+    return 0 if ok else 1
 
 
 def cmd_catalogue(args) -> int:
@@ -374,6 +397,9 @@ def build_parser(open_app: Callable[[str | None], int | None] | None = None) -> 
 
     p = sub.add_parser("catalogue", help="list the built-in archetypes")
     p.set_defaults(func=cmd_catalogue)
+
+    p = sub.add_parser("selftest", help="compile the simulator now (first run only) and check it")
+    p.set_defaults(func=cmd_selftest)
     return parser
 
 

@@ -15,7 +15,10 @@ common lamp is the most lenient reference the trade still calls acceptable.
 """
 from __future__ import annotations
 
+import hashlib
+import os
 from functools import lru_cache
+from pathlib import Path
 
 import numpy as np
 
@@ -44,10 +47,54 @@ def reference_power_w(circuit: Circuit) -> float:
     return min([REFERENCE_FILAMENT_W, *own])
 
 
+# The curve takes 18 steady-state simulations (~0.1 s), the same in every process, so
+# it is also kept on disk beside the compiled integrator's cache (``__pycache__``),
+# named by its three parameters and a digest of the source of every module that shapes
+# it; an edit to any of them, or an unwritable folder, means it is simply simulated.
+CACHE_DIR = Path(__file__).resolve().parent / "__pycache__"
+_SHAPING_MODULES = ("compat/reference_lamp.py", "compat/flicker.py", "compat/runs.py", "loads/*.py")
+
+
+@lru_cache(maxsize=1)
+def _source_digest() -> str:
+    root = Path(__file__).resolve().parent.parent
+    h = hashlib.sha256()
+    for pattern in _SHAPING_MODULES:
+        for f in sorted(root.glob(pattern)):
+            h.update(f.name.encode())
+            h.update(f.read_bytes())
+    return h.hexdigest()[:16]
+
+
+def _cache_file(voltage_v: float, frequency_hz: float, power_w: float) -> Path:
+    return CACHE_DIR / f"reference_lamp-{voltage_v!r}V-{frequency_hz!r}Hz-{power_w!r}W-{_source_digest()}.npy"
+
+
 @lru_cache(maxsize=16)
 def filament_svm_curve(voltage_v: float, frequency_hz: float, power_w: float) -> tuple[np.ndarray, np.ndarray]:
     """(mean light as a fraction of the lamp's rated light [1], SVM [1]) of the reference
-    lamp across the firing angles, sorted by light."""
+    lamp across the firing angles, sorted by light (from the disk cache when it holds
+    this curve, see ``CACHE_DIR``)."""
+    path = _cache_file(voltage_v, frequency_hz, power_w)
+    try:
+        kept = np.load(path, allow_pickle=False)
+        if kept.shape == (2, len(_ANGLES_DEG)):
+            return kept[0].copy(), kept[1].copy()
+    except (OSError, ValueError):
+        pass
+    light, svm = simulated_svm_curve(voltage_v, frequency_hz, power_w)
+    try:
+        CACHE_DIR.mkdir(exist_ok=True)
+        tmp = path.with_name(f"{path.stem}.{os.getpid()}.tmp.npy")
+        np.save(tmp, np.stack([light, svm]), allow_pickle=False)
+        os.replace(tmp, path)       # atomic: a concurrent reader sees all of it or none
+    except OSError:
+        pass
+    return light, svm
+
+
+def simulated_svm_curve(voltage_v: float, frequency_hz: float, power_w: float) -> tuple[np.ndarray, np.ndarray]:
+    """``filament_svm_curve``, simulated (no cache)."""
     c = Circuit(name="reference filament lamp", supply=Supply(voltage_v=voltage_v, frequency_hz=frequency_hz),
                 dimmer=Dimmer(control="phase", wiring="with-neutral", rc_diac=None),
                 loads=(Filament(name="reference", count=1, rated_power_w=power_w, rated_voltage_v=voltage_v),))

@@ -51,10 +51,21 @@ class SettingRun:
     result: SimResult
     analysed_cycles: int
     point: SweepPoint | None = None
+    # figures derived from this run, kept so that checks judged again on a subset of
+    # the sweep (``compat.evaluate.usable_from``) do not compute them twice
+    _memo: dict = field(default_factory=dict, init=False, repr=False, compare=False)
+
+    def memo(self, key, compute):
+        """``compute()``, computed once per run and ``key`` (hashable)."""
+        try:
+            return self._memo[key]
+        except KeyError:
+            value = self._memo[key] = compute()
+            return value
 
     @property
     def half_cycles(self) -> HalfCycles:
-        return tail_half_cycles(self.result.half_cycles, 2 * self.analysed_cycles)
+        return self.memo("half_cycles", lambda: tail_half_cycles(self.result.half_cycles, 2 * self.analysed_cycles))
 
     @property
     def span(self) -> slice:
@@ -66,9 +77,12 @@ class SettingRun:
 
     def light(self, weights: np.ndarray) -> np.ndarray:
         """Total light over the analysed span as a fraction of all lamps at full [1]."""
+        w = np.asarray(weights, dtype=float)
+        return self.memo(("light", w.tobytes()), lambda: self._light(w))
+
+    def _light(self, w: np.ndarray) -> np.ndarray:
         gl = np.atleast_2d(self.result.group_light)[:, self.span]
-        w = np.asarray(weights, dtype=float)[: gl.shape[0]]
-        return w @ gl
+        return w[: gl.shape[0]] @ gl
 
     def light_fraction(self, weights: np.ndarray) -> float:
         if self.point is not None:

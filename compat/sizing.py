@@ -18,6 +18,7 @@ from __future__ import annotations
 
 import dataclasses
 import math
+from functools import lru_cache
 
 import numpy as np
 
@@ -65,8 +66,17 @@ CORRECTION_C_GRID_F = tuple(b * 10.0 ** e for e in range(-8, -4) for b in (1.0, 
 
 
 def _failing(circuit: Circuit, ids, simulator=None, settings=SEARCH_SETTINGS) -> list[str]:
+    return [cid for cid in _failing_checks(circuit, simulator, settings) if cid in ids]
+
+
+@lru_cache(maxsize=256)
+def _failing_checks(circuit: Circuit, simulator, settings: int) -> tuple[str, ...]:
+    """Every failing check of one probe.  Kept: the searches probe the same circuit
+    more than once (the low- and high-side count searches meet at the same counts, the
+    correction search starts from the circuit as it is), and the simulation is
+    deterministic, so a probe is simulated once."""
     ev = gather(circuit, settings=settings, simulator=simulator)
-    return [r.id for r in judge(ev) if r.status is Status.FAIL and r.id in ids]
+    return tuple(r.id for r in judge(ev) if r.status is Status.FAIL)
 
 
 def count_limits(circuit: Circuit, simulator=None, progress=None) -> dict[str, dict]:
@@ -166,12 +176,23 @@ def smallest_correction(circuit: Circuit, simulator=None) -> dict | None:
         # passing need not be monotonic in C (a large C brings its own spikes), so scan
         # a coarse grid upward for the first pass, then bisect below it
         grid = [c for c in CORRECTION_C_GRID_F if CORRECTION_C_RANGE_F[0] <= c <= CORRECTION_C_RANGE_F[1]]
-        first = next((k for k, c in enumerate(grid) if ok(c)), None)
+        # a first pass above a grid value at or over the best found so far leaves this
+        # resistor an answer above it (the answer lies above the last failing value),
+        # so the scan stops there: the same answer, fewer probes
+        first = None
+        for k, c in enumerate(grid):
+            if best is not None and k > 0 and grid[k - 1] >= best[0]:
+                break
+            if ok(c):
+                first = k
+                break
         if first is None:
             continue
         hi = grid[first]
         lo = grid[first - 1] if first > 0 else CORRECTION_C_RANGE_F[0] / 2
         while hi / lo > 1 + CORRECTION_REL_TOL:
+            if best is not None and lo >= best[0]:
+                break                       # every answer left here is above the best
             mid = math.sqrt(lo * hi)
             if ok(mid):
                 hi = mid
@@ -210,7 +231,7 @@ def smallest_correction(circuit: Circuit, simulator=None) -> dict | None:
             "capacitor_series": CAPACITOR_SERIES, "capacitor_tolerance_pct": 100 * CAPACITOR_TOLERANCE,
             "capacitor_class": "X2", "capacitor_rated_voltage_v": x2_rating_v(circuit.supply.voltage_v),
             "resistor_series": RESISTOR_SERIES, "resistor_tolerance_pct": 100 * RESISTOR_TOLERANCE,
-            "resistor_rating_w": resistor_rating_w(loss)}
+            "resistor_rating_w": resistor_rating_w(loss), "report": full}
 
 
 def size(circuit: Circuit, progress=None, simulator=None) -> dict:
@@ -233,7 +254,7 @@ def size(circuit: Circuit, progress=None, simulator=None) -> dict:
     if report.verdict is Verdict.UNSUITABLE:
         correction = smallest_correction(base, simulator)
         if correction is not None:
-            check = evaluate(dataclasses.replace(base, correction=correction["device"]), simulator=simulator)
+            check = correction.pop("report")   # the full evaluation that confirmed the device
             correction["verdict"] = str(check.verdict)
             correction["failing"] = [c.id for c in check.checks if c.status is Status.FAIL]
     step()

@@ -107,10 +107,9 @@ def lamp_temperature_k(d: ElectronicTransformer, power_w: float) -> float:
     top = tungsten.MELTING_POINT_K
     if _fil.radiated_power_w(top, p) <= power_w:
         return top
-    from scipy.optimize import brentq   # here, not at the top: scipy.optimize takes ~0.2 s to import
-
     # xtol: engineering choice, a µK, far below any physical significance
-    return brentq(lambda t: _fil.radiated_power_w(t, p) - power_w, lp.ambient_temperature_k, top, xtol=1e-6)
+    return _fil.bracketed_root(lambda t: _fil.radiated_power_w(t, p) - power_w, lp.ambient_temperature_k, top,
+                               xtol_k=1e-6)
 
 
 @numba.njit(cache=True, _nrt=False)

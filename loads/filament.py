@@ -12,7 +12,6 @@ from functools import lru_cache
 
 import numba
 import numpy as np
-import scipy.constants as _const
 
 from loads import tungsten
 from loads.errors import InputError, ModelRangeWarning, require
@@ -51,7 +50,7 @@ class Filament(LoadGroup):
 #   "unwound").  Cross-section S = pi d²/4, surface A = pi d l, mass m = rho_W·l·S.
 #     resistance      R(T) = rho(T)·l/S                          (TOLIAS_2017 rho)
 #     heat balance    m·c(T)·dT/dt = p_elec − eps(T)·sigma·A·(T⁴ − T_amb⁴)
-#                     (TOLIAS_2017 c and eps; sigma from CODATA via scipy.constants)
+#                     (TOLIAS_2017 c and eps; sigma from CODATA)
 #   Geometry is solved in closed form at the rated point (V_r, P_r, T_op):
 #     R_hot = V_r²/P_r,  A = P_r / (eps(T_op)·sigma·(T_op⁴ − T_amb⁴)),
 #     d³ = 4·rho(T_op)·A / (pi²·R_hot),  l = A/(pi·d).
@@ -75,7 +74,14 @@ class Filament(LoadGroup):
 #   in the visible than its total emissivity and falls with wavelength, so absolute
 #   efficacy is not modelled; only light relative to the rated point is given.
 
-STEFAN_BOLTZMANN_W_M2_K4 = float(_const.sigma)  # CODATA via scipy.constants
+# CODATA: h, c and k are exact by the definition of the SI (2019); sigma follows from
+# them (2 pi^5 k^4 / (15 h^3 c^2)).  Written here rather than read from scipy.constants,
+# whose import costs every command ~60 ms; tests/loads/test_filament.py checks them
+# against scipy.constants.
+PLANCK_J_S = 6.62607015e-34
+LIGHT_SPEED_M_S = 299792458.0
+BOLTZMANN_J_K = 1.380649e-23
+STEFAN_BOLTZMANN_W_M2_K4 = 2.0 * math.pi ** 5 * BOLTZMANN_J_K ** 4 / (15.0 * PLANCK_J_S ** 3 * LIGHT_SPEED_M_S ** 2)
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -198,10 +204,34 @@ def steady_temperature_k(lamp: Filament, v_rms: float) -> float:
     if balance(top) > 0.0:
         raise InputError(f"{v_rms:g} V would drive the filament past tungsten's melting point "
                          f"({top:.0f} K)", key="v_rms")
-    from scipy.optimize import brentq   # here, not at the top: scipy.optimize takes ~0.2 s to import
+    # xtol: engineering choice, far below any physical significance (nK).
+    return bracketed_root(balance, t_amb, top, xtol_k=1e-9)
 
-    # xtol/rtol: engineering choice, far below any physical significance (nK).
-    return brentq(balance, t_amb, top, xtol=1e-9, rtol=1e-14, maxiter=200)
+
+def bracketed_root(f, lo: float, hi: float, *, xtol_k: float) -> float:
+    """The temperature in [lo, hi] [K] where ``f`` changes sign, to within ``xtol_k``
+    [K], by bisection (f(lo) and f(hi) of opposite signs, or one of them zero).
+
+    Plain bisection, not scipy's ``brentq``: the heat balances solved here are monotone
+    and cheap, ~42 halvings reach a nanokelvin on 300–3700 K, and importing
+    ``scipy.optimize`` would cost a ``dimfit check`` about 0.1–0.2 s."""
+    f_lo = f(lo)
+    if f_lo == 0.0:
+        return float(lo)
+    if f(hi) == 0.0:
+        return float(hi)
+    while hi - lo > xtol_k:
+        mid = 0.5 * (lo + hi)
+        if mid in (lo, hi):        # the floating-point grid is finer than xtol_k no more
+            break
+        f_mid = f(mid)
+        if f_mid == 0.0:
+            return float(mid)
+        if (f_mid > 0.0) == (f_lo > 0.0):
+            lo, f_lo = mid, f_mid
+        else:
+            hi = mid
+    return float(0.5 * (lo + hi))
 
 
 def steady_power_w(lamp: Filament, v_rms: float) -> float:
@@ -227,8 +257,8 @@ PHOTOPIC_V = np.array([
 
 def planck_spectral_radiance_w_m3_sr(wavelength_m, t_k):
     """Planck's law B(lambda, T) [W/(m²·sr·m)] for wavelength_m [m] and t_k [K] (arrays
-    broadcast).  Constants: CODATA via scipy.constants."""
-    h, c, k = _const.h, _const.c, _const.k
+    broadcast).  Constants: CODATA (exact SI values)."""
+    h, c, k = PLANCK_J_S, LIGHT_SPEED_M_S, BOLTZMANN_J_K
     lam = np.asarray(wavelength_m, dtype=np.float64)
     t = np.asarray(t_k, dtype=np.float64)
     return 2.0 * h * c ** 2 / lam ** 5 / np.expm1(h * c / (lam * k * t))
@@ -249,7 +279,9 @@ def visible_radiance(t_k):
 LIGHT_TABLE_MIN_K = 200.0
 LIGHT_TABLE_MAX_K = tungsten.MELTING_POINT_K
 _LIGHT_T_K = np.arange(LIGHT_TABLE_MIN_K, LIGHT_TABLE_MAX_K + 0.5, 1.0)
-_LIGHT_LN = np.log(np.array([emissivity(float(t)) for t in _LIGHT_T_K]) * visible_radiance(_LIGHT_T_K))
+# (emissivity's own Python body, applied to the whole array: one numpy expression
+# instead of ~3500 calls into the compiled function at import)
+_LIGHT_LN = np.log(emissivity.py_func(_LIGHT_T_K) * visible_radiance(_LIGHT_T_K))
 
 
 def _ln_light(t_k: np.ndarray) -> np.ndarray:

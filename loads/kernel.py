@@ -55,43 +55,132 @@ from loads import filament as _fil
 from loads import linear as _lin
 from loads import transformer as _tr
 
-# --- unknowns ---------------------------------------------------------------------
-IL, ISW, VD, VB, VSN, VT, VW = range(7)
+# --- unknowns y[...] (the load groups' own unknowns follow, from N_CORE) -------------
+IL = 0        # line current, source to load terminal [A]
+ISW = 1       # switch current [A]
+VD = 2        # voltage across the dimmer [V]
+VB = 3        # load terminal voltage [V]
+VSN = 4       # snubber capacitor voltage [V]
+VT = 5        # rc-diac timing capacitor voltage [V]
+VW = 6        # wiring (cable) capacitance voltage, behind its damping resistor [V]
 N_CORE = 7
 
-# --- circuit parameters P[...] -----------------------------------------------------
-(VPK, OMEGA, RS, LS, CB, LC, RON, VTD, IH, ILATCH, IGT, GATEW, RSN, CSN, RT, CT,
- VBOP, VBON, VONP, VONN, RG, IDOFF, ISS, VCL, RCL, TRIP, ALPHA, GLEAK, HMAX, RTOL,
- EVTOL, EARLY, TRAMP, CW, RW, DIDTC, TQ, SOFT, N_P) = range(39)
+# --- circuit parameters P[...] (floats, SI; filled by loads.simulation.pack) ------------
+# supply and wiring
+VPK = 0       # supply peak EMF [V]
+OMEGA = 1     # supply angular frequency [rad/s]
+RS = 2        # source resistance [Ω]
+LS = 3        # source inductance [H]
+CB = 4        # capacitance at the load terminal [F]
+CW = 33       # cable capacitance kept behind RW [F]
+RW = 34       # its damping resistance [Ω]
+# the dimmer's power path
+LC = 5        # RFI choke [H]
+RON = 6       # switch on-state resistance [Ω]
+VTD = 7       # switch on-state voltage [V]
+GLEAK = 27    # switch off-state conductance [S]
+IH = 8        # holding current [A]
+ILATCH = 9    # latching current [A]
+DIDTC = 35    # commutating di/dt limit [A/s] (inf: none)
+TQ = 36       # triac turn-off time [s]
+RSN = 12      # snubber resistance [Ω]
+CSN = 13      # snubber capacitance [F]
+ISS = 22      # two-wire self-supply current [A]
+VCL = 23      # trailing-edge clamp voltage [V]
+RCL = 24      # clamp slope resistance [Ω]
+TRIP = 25     # trailing-edge protection trip current [A]
+TRAMP = 32    # trailing-edge turn-off ramp time [s]
+SOFT = 37     # trailing-edge soft-start time [s]
+# the dimmer's control
+ALPHA = 26    # phase controller's firing angle [rad]
+IGT = 10      # gate trigger current [A]
+GATEW = 11    # gate drive window [s]
+RT = 14       # rc-diac timing resistance, fixed + pot [Ω]
+CT = 15       # rc-diac timing capacitance [F]
+VBOP = 16     # diac breakover voltage, positive [V]
+VBON = 17     # diac breakover voltage, negative [V]
+VONP = 18     # diac voltage after snapback, positive [V]
+VONN = 19     # diac voltage after snapback, negative [V]
+RG = 20       # diac-to-gate resistance [Ω]
+IDOFF = 21    # diac turn-off current [A]
+# the solver and the records
+HMAX = 28     # largest step [s]
+RTOL = 29     # relative tolerance [1]
+EVTOL = 30    # event location tolerance [s]
+EARLY = 31    # a drop-out this far before the half-cycle's end is early [deg]
+N_P = 38
 
-# --- integer parameters IP[...] ----------------------------------------------------
-EDGE, CONTROL, NOFIRE, NG, NY, GDRIVE, N_IP = range(7)
+# --- integer parameters IP[...] ----------------------------------------------------------
+EDGE = 0      # LEADING | TRAILING
+CONTROL = 1   # PHASE | RC_DIAC
+NOFIRE = 2    # 1: the switch never fires (lamp-out state)
+NG = 3        # number of load groups [1]
+NY = 4        # number of unknowns [1]
+GDRIVE = 5    # SINGLE_PULSE | UNTIL_LATCHED: a phase controller's gate drive (loads.dimmer)
+N_IP = 6
 LEADING, TRAILING = 0, 1
 PHASE, RC_DIAC = 0, 1
-SINGLE_PULSE, UNTIL_LATCHED = 0, 1   # IP[GDRIVE]: a phase controller's gate drive (loads.dimmer)
+SINGLE_PULSE, UNTIL_LATCHED = 0, 1
 
-# --- discrete state S[...] (ints) ----------------------------------------------------
-SW_ON, GATE, LATCHED, DIAC_ON, DIAC_POL, CLAMP, HCIDX, FIRE_HC, TRIPPED, CPOL, N_S = range(11)
-# followed by one mode per group
+# --- discrete state S[...] (ints; one mode per group follows, from N_S) ------------------
+SW_ON = 0     # switch conducting: 0 off, 1 on, RAMPING
+GATE = 1      # gate driven: 0 | 1
+LATCHED = 2   # 0 no, 1 yes, CARRIED, DIPPING
+DIAC_ON = 3   # rc-diac's diac conducting: 0 | 1
+DIAC_POL = 4  # its polarity: +1 | −1
+CLAMP = 5     # trailing-edge clamp conducting: 0 | 1
+HCIDX = 6     # index of the current half-cycle record [1]
+FIRE_HC = 7   # half-cycle record of the conduction under way (−1: none) [1]
+TRIPPED = 8   # trailing-edge protection has tripped: 0 | 1
+CPOL = 9      # polarity of the conduction under way: +1 | −1
+N_S = 10
+RAMPING = 2   # S[SW_ON] while a trailing-edge switch ramps its current down
+CARRIED = 2   # S[LATCHED]: conducting on through a failed commutation
+DIPPING = 3   # S[LATCHED]: below I_H for less than the turn-off time, still conducting
 
-# --- discrete state Q[...] (floats) ------------------------------------------------
-GATE_END, T_FIRE, T_OFF, HC_START, RAMP_I0, T_RAMP_END, DIDT, T_DIP, T_DIP_END, T_SYNC, N_Q = range(11)
-# Q[T_SYNC]: the first supply zero crossing after the supply appeared; a phase controller
-# does nothing before it, and a trailing-edge soft start ramps from it (−inf: long ago)
-# followed by four per group: (level, t_up, t_down, sense state) – see _sense_edges
+# --- discrete state Q[...] (floats; four per group follow, from N_Q: level [1], t_up [s],
+# t_down [s], sense state, see _sense_edges) ----------------------------------------------
+GATE_END = 0     # end of the gate drive [s]
+T_FIRE = 1       # next phase-control firing [s] (inf: none)
+T_OFF = 2        # next trailing-edge turn-off [s] (inf: none)
+HC_START = 3     # start of the current half-cycle [s]
+RAMP_I0 = 4      # switch current where a turn-off ramp began [A]
+T_RAMP_END = 5   # end of that ramp [s] (inf: none)
+DIDT = 6         # switch current's slope over the last step [A/s]
+T_DIP = 7        # when the current fell below I_H [s]
+T_DIP_END = 8    # when that dip has lasted the turn-off time [s]
+T_SYNC = 9       # the first supply zero crossing after the supply appeared [s] (−inf: long
+                 # ago): a phase controller does nothing before it, a soft start ramps from it
+N_Q = 10
 
-# --- half-cycle record columns -------------------------------------------------------
-(H_START, H_FIRE, H_EXT, H_FIRINGS, H_FAILED, H_EARLY, H_ABOVE, H_PEAK_SW, H_PEAK_LINE,
- H_I2T, H_V2, H_I2, H_VI, H_I, N_H) = range(15)
+# --- half-cycle record columns HC[k, ...] --------------------------------------------------
+H_START = 0      # start (supply zero crossing) [s]
+H_FIRE = 1       # first firing angle [deg] (nan: none)
+H_EXT = 2        # extinction angle [deg] (nan: none)
+H_FIRINGS = 3    # triggers [1]
+H_FAILED = 4     # triggers that failed to latch [1]
+H_EARLY = 5      # early drop-outs [1]
+H_ABOVE = 6      # time the switch current was at or above I_H [s]
+H_PEAK_SW = 7    # peak |switch current| [A]
+H_PEAK_LINE = 8  # peak |line current| [A]
+H_I2T = 9        # ∫ i_switch² dt [A²s]
+H_V2 = 10        # ∫ v_load² dt [V²s]
+H_I2 = 11        # ∫ i_line² dt [A²s]
+H_VI = 12        # ∫ v_load·i_line dt [J]
+H_I = 13         # ∫ i_line dt [A·s]
+N_H = 14
 
-# --- output columns -------------------------------------------------------------------
-O_E, O_VB, O_IL, O_ISW, O_VD, O_VT, N_O0 = range(7)
+# --- output columns OUT[k, ...] (each group's current [A], then its light state, follow) ---
+O_E = 0       # source EMF [V]
+O_VB = 1      # load terminal voltage [V]
+O_IL = 2      # line current [A]
+O_ISW = 3     # switch current [A]
+O_VD = 4      # dimmer voltage [V]
+O_VT = 5      # timing capacitor voltage [V]
+N_O0 = 6
 
 # --- load kinds --------------------------------------------------------------------
 K_FILAMENT, K_MAGNETIC, K_DRIVER, K_ETRANS, K_LINEAR = range(5)
-RAMPING = 2          # S[SW_ON] while a trailing-edge switch ramps its current down
-CARRIED = 2          # S[LATCHED]: conducting on through a failed commutation
-DIPPING = 3          # S[LATCHED]: below I_H for less than the turn-off time, still conducting
 
 GAMMA = 2.0 - math.sqrt(2.0)
 D_COEF = GAMMA / 2.0
@@ -924,7 +1013,7 @@ def _modes_neutral(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, snap):
     return True
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, _nrt=False)
 def _bail_forward(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F0, G, work, F1, rhs,
                   counters, nstate):
     """Where no converging step can be found, one backward-Euler step of 1 ns (the
@@ -942,6 +1031,98 @@ def _bail_forward(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M
     return True
 
 
+# --- the phases of one step of ``run`` ---------------------------------------------------
+# Event location and the mode update after an event are functions; the phases every
+# step goes through (step attempt, recording, the timed events) are named sections of
+# ``run``: as separate functions (with ~30 array arguments each; numba would not inline
+# them) they made the reference cases ~30 % slower (tests.bench's cases, min of 15 runs).
+
+@numba.njit(cache=True, _nrt=False)
+def _copy_into(dst, src):
+    """dst[:] = src without numba's temporary copy (which needs its runtime)."""
+    for i in range(src.shape[0]):
+        dst[i] = src[i]
+
+
+@numba.njit(cache=True, _nrt=False)
+def _locate_event(t, h, ng0, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
+                  yg, y1, Fg, F1, A, piv, G, rhs, est, nstate, g0, g1, gm, glo, ghi, ytry, yhi, yghi):
+    """Event location: a guard changed sign over the accepted step [t, t + h]; narrow
+    the step to end just past the earliest crossing, within P[EVTOL].  On success y1 and
+    yg hold the shortened step's end and stage values; returns (the step to the event,
+    whether no converging step reaches it: then bail out)."""
+    lo = 0.0
+    hi = h
+    _copy_into(glo, g0)
+    _copy_into(ghi, g1)
+    _copy_into(ytry, y1)
+    _copy_into(yhi, y1)
+    _copy_into(yghi, yg)
+    hi_valid = True
+    bail = False
+    while hi - lo > P[EVTOL]:
+        # earliest crossing estimate by linear interpolation of each guard
+        frac = 1.0
+        for i in range(ng0):
+            if (glo[i] < 0.0) != (ghi[i] < 0.0):
+                f = glo[i] / (glo[i] - ghi[i])
+                if f < frac:
+                    frac = f
+        if hi_valid and (hi - lo) * (1.0 - frac) < 0.5 * P[EVTOL]:
+            # the crossing is estimated within the tolerance below hi: one trial
+            # just short of hi brackets it (or moves hi down)
+            hm = hi - 0.5 * P[EVTOL]
+        else:
+            hm = lo + (hi - lo) * min(max(frac, 0.05), 0.95)
+            hm = min(hm + 0.25 * P[EVTOL], hi - 0.25 * P[EVTOL])
+        err2 = trbdf2_step(t, hm, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
+                           yg, ytry, Fg, F1, A, piv, G, rhs, est, nstate)
+        any_c = False
+        if np.isinf(err2):
+            # Newton failed on the trial (a kink inside it): shrink from above
+            if hm - lo < 1e-12:
+                bail = True
+                break
+            hi = hm
+            hi_valid = False
+            continue
+        guards(ytry, P, IP, S, gk, gxo, gpo, gnp, GP, gm)
+        for i in range(ng0):
+            if (g0[i] < 0.0) != (gm[i] < 0.0):
+                any_c = True
+                break
+        if any_c:
+            hi = hm
+            hi_valid = True
+            _copy_into(ghi, gm)
+            _copy_into(yhi, ytry)
+            _copy_into(yghi, yg)
+        else:
+            lo = hm
+            _copy_into(glo, gm)
+    if not bail and not hi_valid:
+        if np.isinf(trbdf2_step(t, hi, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
+                                yghi, yhi, Fg, F1, A, piv, G, rhs, est, nstate)):
+            bail = True
+    if not bail:
+        _copy_into(y1, yhi)
+        _copy_into(yg, yghi)
+    return hi, bail
+
+
+@numba.njit(cache=True, _nrt=False)
+def _settle_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F0, G, work, F1, rhs,
+                  nstate):
+    """Mode update, part 2: modes and a consistent state at t, alternated until the
+    modes stand (at most five rounds)."""
+    for _ in range(5):
+        update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP)
+        make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F0, G, work, F1,
+                        rhs, nstate)
+        if not update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
+            break
+
+
 @numba.njit(cache=True, nogil=True)
 def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         t_samp0, dt_samp, OUT, HC, counters):
@@ -950,7 +1131,12 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
     OUT[k] holds the outputs at t_samp0 + k·dt_samp; HC[j] the figures of the j-th
     half-cycle (S[HCIDX] is the index of the current one on entry).  counters[0] gets the
     accepted steps, counters[1] the rejected ones, counters[2] the located events.
-    Returns 0 on success, 1 if the step size collapsed."""
+    Returns 0 on success, 1 if the step size collapsed.
+
+    Each step, in named sections: the next time event bounds it; step attempt; event
+    location if a guard changed sign (``_locate_event``); where neither converges, the
+    1 ns bail-out (``_bail_forward``, one place); recording; mode update (the timed
+    events, then ``_settle_modes``)."""
     n = y.shape[0]
     no = OUT.shape[1]
     M = np.zeros(n)
@@ -967,10 +1153,14 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
     yg = np.zeros(n)
     y1 = np.zeros(n)
     ytry = np.zeros(n)
+    yhi = np.zeros(n)
+    yghi = np.zeros(n)
     wt = np.zeros(n)
     g0 = np.zeros(64)
     g1 = np.zeros(64)
     gm = np.zeros(64)
+    glo = np.zeros(64)
+    ghi = np.zeros(64)
     o0 = np.zeros(no)
     og = np.zeros(no)
     o1 = np.zeros(no)
@@ -1003,11 +1193,8 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             S[SW_ON] = 1 if (to > t and synced) else 0
     if abs(t - Q[T_FIRE]) < 1e-12:
         _fire_phase(t, y, P, IP, S, Q, HC)
-    for _ in range(5):
-        update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP)
-        make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F0, G, work, F1, rhs, nstate)
-        if not update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
-            break
+    _settle_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F0, G, work, F1, rhs,
+                  nstate)
     outputs(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o0)
     ks = 0
     while ks < OUT.shape[0] and t_samp0 + ks * dt_samp <= t + 1e-15:
@@ -1049,7 +1236,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         if fresh:
             outputs(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o0)
             fresh = False
-        # attempt steps until one is accepted
+        # --- step attempt: TR-BDF2 steps from t, shrinking h until the error test passes
         rejected = False
         while True:
             err = trbdf2_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
@@ -1069,9 +1256,33 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
                 h *= max(0.2, 0.9 * err ** (-1.0 / 3.0))
             if h < 1e-12:
                 break
-        if h < 1e-12:
-            # the step collapsed (a kink the Newton iteration cannot cross): take one
-            # backward-Euler step of 1 ns past it, refresh the modes and go on
+        # the step collapsed (a kink the Newton iteration cannot cross)
+        bail = h < 1e-12
+        crossed = False
+        fac = 1.0
+        h_before = h
+        if not bail:
+            fac = 2.0 if err < 1e-6 else min(2.0, 0.9 * err ** (-1.0 / 3.0))
+            if rejected:
+                fac = min(fac, 1.0)   # no growth right after a rejection (fewer repeat rejections)
+            if 1.0 <= fac <= HOLD_FAC:
+                fac = 1.0             # small growth is not worth a new factorisation
+            # --- event location: did any guard change sign?
+            guards(y1, P, IP, S, gk, gxo, gpo, gnp, GP, g1)
+            for i in range(ng0):
+                if (g0[i] < 0.0) != (g1[i] < 0.0):
+                    crossed = True
+                    break
+            if crossed:
+                h, bail = _locate_event(t, h, ng0, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
+                                        yg, y1, Fg, F1, A, piv, G, rhs, est, nstate, g0, g1, gm, glo, ghi, ytry,
+                                        yhi, yghi)
+                if not bail:
+                    counters[2] += 1
+        # --- bail-out
+        if bail:
+            # no converging step reaches past here: take one backward-Euler step of 1 ns
+            # past it, refresh the modes and go on
             if not _bail_forward(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv,
                                  F0, G, work, F1, rhs, counters, nstate):
                 return 1
@@ -1080,88 +1291,8 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             jac_age = JAC_AGE
             h = 1e-8
             continue
-        fac = 2.0 if err < 1e-6 else min(2.0, 0.9 * err ** (-1.0 / 3.0))
-        if rejected:
-            fac = min(fac, 1.0)   # no growth right after a rejection (fewer repeat rejections)
-        if 1.0 <= fac <= HOLD_FAC:
-            fac = 1.0             # small growth is not worth a new factorisation
-        h_before = h
-        # located events: did any guard change sign?
-        guards(y1, P, IP, S, gk, gxo, gpo, gnp, GP, g1)
-        crossed = False
-        for i in range(ng0):
-            if (g0[i] < 0.0) != (g1[i] < 0.0):
-                crossed = True
-                break
-        if crossed:
-            lo = 0.0
-            hi = h
-            glo = g0.copy()
-            ghi = g1.copy()
-            ytry[:] = y1
-            yhi = y1.copy()
-            yghi = yg.copy()
-            hi_valid = True
-            bail = False
-            while hi - lo > P[EVTOL]:
-                # earliest crossing estimate by linear interpolation of each guard
-                frac = 1.0
-                for i in range(ng0):
-                    if (glo[i] < 0.0) != (ghi[i] < 0.0):
-                        f = glo[i] / (glo[i] - ghi[i])
-                        if f < frac:
-                            frac = f
-                if hi_valid and (hi - lo) * (1.0 - frac) < 0.5 * P[EVTOL]:
-                    # the crossing is estimated within the tolerance below hi: one trial
-                    # just short of hi brackets it (or moves hi down)
-                    hm = hi - 0.5 * P[EVTOL]
-                else:
-                    hm = lo + (hi - lo) * min(max(frac, 0.05), 0.95)
-                    hm = min(hm + 0.25 * P[EVTOL], hi - 0.25 * P[EVTOL])
-                err2 = trbdf2_step(t, hm, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
-                                   yg, ytry, Fg, F1, A, piv, G, rhs, est, nstate)
-                any_c = False
-                if np.isinf(err2):
-                    # Newton failed on the trial (a kink inside it): shrink from above
-                    if hm - lo < 1e-12:
-                        bail = True
-                        break
-                    hi = hm
-                    hi_valid = False
-                    continue
-                guards(ytry, P, IP, S, gk, gxo, gpo, gnp, GP, gm)
-                for i in range(ng0):
-                    if (g0[i] < 0.0) != (gm[i] < 0.0):
-                        any_c = True
-                        break
-                if any_c:
-                    hi = hm
-                    hi_valid = True
-                    ghi[:] = gm
-                    yhi[:] = ytry
-                    yghi[:] = yg
-                else:
-                    lo = hm
-                    glo[:] = gm
-            if not bail and not hi_valid:
-                if np.isinf(trbdf2_step(t, hi, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
-                                        yghi, yhi, Fg, F1, A, piv, G, rhs, est, nstate)):
-                    bail = True
-            if bail:
-                # the crossing cannot be reached by a converging step: step 1 ns past it
-                if not _bail_forward(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv,
-                                     F0, G, work, F1, rhs, counters, nstate):
-                    return 1
-                t += CONSISTENT_STEP_S
-                fresh = True
-                jac_age = JAC_AGE
-                h = 1e-8
-                continue
-            h = hi
-            y1[:] = yhi
-            yg[:] = yghi
-            counters[2] += 1
-        # accept the step [t, t + h]
+        # --- recording: accept the step [t, t + h]; its half-cycle sums and every output
+        # sample inside it
         outputs(t + GAMMA * h, yg, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, og)
         outputs(t + h, y1, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o1)
         _accumulate(t, h, o0, og, o1, P, IP, S, Q, HC, gk, gpo, gnp, GP)
@@ -1179,30 +1310,27 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         y[:] = y1
         o0[:] = o1
         counters[0] += 1
-        event = crossed
+        # --- mode update: the events due at t by the clock (gate window end, trailing
+        # turn-off and its ramp's end, a dip's end, the half-cycle boundary, the firing),
+        # then the modes and a consistent state after any event
         timed = False
-        # time events
         if IP[CONTROL] == PHASE and IP[EDGE] == LEADING and S[GATE] != 0 and abs(t - Q[GATE_END]) < 1e-12:
             if IP[GDRIVE] == UNTIL_LATCHED and S[LATCHED] == 0:
                 Q[GATE_END] = np.inf     # driven on until it latches or the half-cycle ends
             else:
                 S[GATE] = 0
-            event = True
             timed = True
         if abs(t - Q[T_OFF]) < 1e-12:
             Q[T_OFF] = np.inf
             if S[SW_ON] == 1:
                 _start_turn_off(t, y, P, S, Q, HC)
-            event = True
             timed = True
         if S[SW_ON] == RAMPING and abs(t - Q[T_RAMP_END]) < 1e-12:
             Q[T_RAMP_END] = np.inf
             _record_off(t - 0.5 * P[TRAMP], S, Q, HC, P, False, y, False)
-            event = True
             timed = True
         if S[LATCHED] == DIPPING and abs(t - Q[T_DIP_END]) < 1e-12:
-            event = True           # the dip has lasted the turn-off time (see update_modes)
-            timed = True
+            timed = True           # the dip has lasted the turn-off time (see update_modes)
         if abs(t - t_hb) < 1e-12:
             if IP[GDRIVE] == UNTIL_LATCHED and S[GATE] != 0 and Q[GATE_END] == np.inf:
                 # a drive held past its window ends with its half-cycle; a switch that has
@@ -1221,24 +1349,19 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
                 S[FIRE_HC] = S[HCIDX]
                 _record_firing(t, S, Q, HC, P)
             t_hb += half
-            event = True
             timed = True
         if abs(t - Q[T_FIRE]) < 1e-12:
             _fire_phase(t, y, P, IP, S, Q, HC)
-            event = True
             timed = True
+        event = crossed or timed
         if event and crossed and not timed and _modes_neutral(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, snap):
             # the crossing changed only what the guards watch (latching, carrying, re-arming),
             # not the equations: the state is consistent and the Jacobian still holds
             fresh = True
             h = h_before * 0.25
         elif event:
-            for _ in range(5):
-                update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP)
-                make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv,
-                                F0, G, work, F1, rhs, nstate)
-                if not update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
-                    break
+            _settle_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F0, G, work, F1,
+                          rhs, nstate)
             fresh = True
             jac_age = 0
             # restart from a fraction of the step that was running before the event: the

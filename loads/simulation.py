@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import dataclasses
 import math
+import threading
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from enum import StrEnum
@@ -623,6 +624,45 @@ def _settled_et_lamps(circuit: Circuit, pk: _Packed, y: np.ndarray, out: np.ndar
     return y
 
 
+# ---------------------------------------------------------------------------
+# The first run: numba compiles the integrator (20-60 s) and caches it on disk
+# ---------------------------------------------------------------------------
+
+# Called once per process, with no argument, just before the first simulation when the
+# compiled integrator is not in numba's cache (a first run, or kernel.py edited): the
+# command line prints a line on stderr, the app shows one.  None: say nothing.
+compile_notice: Callable[[], None] | None = None
+_compile_checked = False
+_compile_lock = threading.Lock()
+
+
+def integrator_cached() -> bool:
+    """Whether numba's on-disk cache holds the compiled integrator (``kernel.run``) for
+    the current ``kernel.py``: a look at numba's cache index (~1 ms), the same test numba
+    makes before it loads or compiles.  False when the cache cannot be read."""
+    try:
+        return bool(K.run._cache._cache_file._load_index())   # numba internals, pinned in pyproject.toml
+    except Exception:
+        return False
+
+
+def _announce_compile() -> None:
+    global _compile_checked
+    if _compile_checked:
+        return
+    with _compile_lock:
+        if _compile_checked:
+            return
+        _compile_checked = True
+        if compile_notice is not None and not _integrator_ready():
+            compile_notice()
+
+
+def _integrator_ready() -> bool:
+    """Compiled in this process already, or in numba's cache."""
+    return bool(K.run.signatures) or integrator_cached()
+
+
 def simulate(circuit: Circuit, *, setting: float | None = None, firing_angle_deg: float | None = None,
              cycles: int = 10, start: str | Start | object = Start.COLD, switch_on_deg: float = 0.0,
              no_firing: bool = False, samples_per_cycle: int = 400,
@@ -635,6 +675,7 @@ def simulate(circuit: Circuit, *, setting: float | None = None, firing_angle_deg
     ~0.1–0.5 s to settle, longer than a sweep point).  Those lamps do not act back on the
     circuit, so the run is made once to measure the power and again from the same state."""
     _check_args(setting, firing_angle_deg, cycles, samples_per_cycle)
+    _announce_compile()
     if firing_angle_deg is None and setting is None:
         setting = 1.0
     pk = pack(circuit, setting=setting, firing_angle_deg=firing_angle_deg, no_firing=no_firing,

@@ -127,11 +127,11 @@ SOURCES: dict[str, Source] = {
     "CODATA": Source(
         authors="CODATA Task Group on Fundamental Constants",
         title="CODATA recommended values of the fundamental physical constants",
-        edition="the set shipped in scipy.constants (CODATA 2022 in the installed scipy)",
+        edition="CODATA 2022 (h, c and k exact since the 2019 SI; the tests compare with scipy.constants)",
         year=2022,
         locator="Stefan-Boltzmann constant, Planck constant, speed of light, "
                 "Boltzmann constant",
-        note="read at run time from scipy.constants",
+        note="written in loads/filament.py; sigma computed from h, c and k",
         short="CODATA 2022 constants",
     ),
     "CIE15": Source(

@@ -56,7 +56,7 @@ def test_geometry_round_trip(lamp):
 def test_steady_state_energy_balance(lamp):
     p = pack(lamp)
     # At rated voltage the steady temperature is the operating temperature
-    # (atol 1e-6 K: brentq tolerance is 1e-9 K, rounding of the geometry adds a little).
+    # (atol 1e-6 K: the root finder's tolerance is 1e-9 K, rounding of the geometry adds a little).
     assert steady_temperature_k(lamp, lamp.rated_voltage_v) == pytest.approx(lamp.operating_temperature_k, abs=1e-6)
     assert steady_power_w(lamp, lamp.rated_voltage_v) == pytest.approx(lamp.rated_power_w, rel=1e-9)
     for frac in (0.1, 0.3, 0.6, 0.9, 1.05):
@@ -311,3 +311,13 @@ def test_kernel_functions_are_callable_from_another_njit_function():
         t_py += 1e-5 * temperature_rate_k_s(t_py, 230.0 ** 2 / resistance_ohm(t_py, p), p)
     # rtol 1e-12: same arithmetic, compiled vs interpreted call path
     assert euler(300.0, 230.0, p, 1e-5, 10) == pytest.approx(t_py, rel=1e-12)
+
+
+@pytest.mark.published
+def test_physical_constants_are_codata():
+    # CODATA 2022 (the set scipy.constants ships): h, c, k exact by the 2019 SI, sigma
+    # derived; the model writes them out to spare the scipy.constants import.
+    # rtol 1e-15: the same double, allowing one rounding in sigma's formula.
+    from loads import filament as fil
+    assert fil.PLANCK_J_S == const.h and fil.LIGHT_SPEED_M_S == const.c and fil.BOLTZMANN_J_K == const.k
+    assert fil.STEFAN_BOLTZMANN_W_M2_K4 == pytest.approx(const.sigma, rel=1e-15, abs=0.0)
