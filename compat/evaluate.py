@@ -25,6 +25,7 @@ from compat.runs import Cancelled, Evidence, SettingRun
 from compat.switch_on import INRUSH_ANGLES_DEG, breaker_max_counts, default_simulator, switch_on_runs
 from compat.verdict import attached_cautions, overall
 from loads.circuit import Circuit
+from loads.dimmer import Edge
 from loads.errors import InputError
 
 MIN_SETTINGS = 21                  # brief: at least 21 settings per direction
@@ -234,8 +235,13 @@ def _bottom_of_travel(ev: Evidence, full: dict[str, CheckResult]) -> dict[str, C
         return full
     s, above = found
     row = next((r.point for r in ev.down if abs(r.setting - s) < 1e-9 and r.point is not None), None)
-    angle = (f" (firing angle about {row.firing_angle_deg:.0f}°)"
-             if row is not None and np.isfinite(row.firing_angle_deg) else "")
+    if ev.circuit.dimmer.edge is Edge.LEADING:
+        angle = (f" (firing angle about {row.firing_angle_deg:.0f}°)"
+                 if row is not None and np.isfinite(row.firing_angle_deg) else "")
+    else:
+        angle = (f" (conducting about {row.conduction_angle_deg:.0f}°)"
+                 if row is not None and row.conduction_angle_deg is not None
+                 and np.isfinite(row.conduction_angle_deg) else "")
     out = dict(full)
     for cid, res in full.items():
         if res.status is not Status.FAIL:
