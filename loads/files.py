@@ -41,7 +41,7 @@ from pathlib import Path
 import tomli_w
 
 from loads.breaker import Breaker
-from loads.circuit import LOAD_CLASSES, Circuit, Range
+from loads.circuit import LOAD_CLASSES, Circuit, Range, paired_values
 from loads.dimmer import Dimmer, RcDiac
 from loads.errors import InputError
 from loads.linear import Linear
@@ -455,7 +455,9 @@ def _read_table(ctx: _Context, cls: type, table, prefix: str, *, allowed: typing
         raise _model_error(ctx, prefix, cls, kwargs, err) from None
     for field, (low, high, path) in ranged.items():
         for end, bound in (("min", low), ("max", high)):
-            trial = dict(kwargs, **{field: bound})
+            # each end as the evaluation builds it: the others at their midpoints, a
+            # field kept in order with this one moved with it (latching ≥ holding)
+            trial = paired_values(cls, kwargs, field, bound)
             try:
                 cls(**trial)
             except InputError as err:
