@@ -59,9 +59,15 @@ def _fail(message: str) -> int:
 
 
 def _read(path: str):
+    """The circuit in ``path``; a legal but unusual value gives one warning line each
+    on stderr (the physical ranges of the file reference, ``loads.files.PHYSICAL``)."""
     from loads.files import read_circuit
 
-    return read_circuit(path)
+    notes: list[str] = []
+    circuit = read_circuit(path, notes=notes)
+    for note in notes:
+        print(f"{PROG}: warning: {_one_line(note)}", file=sys.stderr)
+    return circuit
 
 
 def _progress(label: str):

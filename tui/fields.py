@@ -15,6 +15,7 @@ from loads.breaker import Breaker, Curve
 from loads.dimmer import Control, Edge, Wiring
 from loads.driver import BleederKind
 from loads.errors import InputError
+from loads.files import check_physical
 from loads.load import LoadGroup, LoadKind
 from loads.supply import PRESETS
 from tui.units import format_number, format_quantity, parse_quantity
@@ -248,7 +249,16 @@ def with_value(obj, spec: FieldSpec, value):
         base = obj if obj is not None else Breaker()
         return dataclasses.replace(base, curve=value)
     try:
-        return _replace_path(obj, spec.path, value)
+        parent = obj
+        *heads, last = spec.path.split(".")
+        for head in heads:
+            parent = getattr(parent, head)
+        new = _replace_path(obj, spec.path, value)        # the model's own rules first
+        if parent is not None:
+            # the file reference's physical range (loads.files.PHYSICAL): what a file
+            # may not hold, the app may not take either
+            check_physical(type(parent), last, value)
+        return new
     except TypeError as error:               # a wrong type reaching the dataclass
         raise InputError(str(error)) from error
 
