@@ -355,6 +355,7 @@ def _line_index(text: str) -> dict[str, int]:
             aot_count[name] = aot_count.get(name, 0) + 1
             current = [f"{name}[{aot_count[name]}]"]
             index.setdefault(current[0], lineno)
+            _index_parents(index, name.split(".") + [""], lineno)    # the array itself: its first table
         else:
             m = _TABLE_RE.match(line)
             if m:
@@ -363,6 +364,7 @@ def _line_index(text: str) -> dict[str, int]:
                     parts = [f"{parts[0]}[{aot_count[parts[0]]}]"] + parts[1:]
                 current = [".".join(parts)]
                 index.setdefault(current[0], lineno)
+                _index_parents(index, parts, lineno)   # [a.b] alone also defines a
             else:
                 m = _KEY_RE.match(line)
                 if m:
@@ -373,6 +375,13 @@ def _line_index(text: str) -> dict[str, int]:
                 in_multiline = quote
                 break
     return index
+
+
+def _index_parents(index: dict[str, int], parts: list[str], lineno: int) -> None:
+    """Point each enclosing table of a header (``dimmer`` for ``[dimmer.rc_diac]``) at
+    it, where the file has no header of its own for that table (yet)."""
+    for i in range(1, len(parts)):
+        index.setdefault(".".join(parts[:i]), lineno)
 
 
 class _Context:
@@ -687,8 +696,17 @@ def _load_toml(text: str, source: str, notes: list[str] | None = None) -> tuple[
         message = message[:1].lower() + message[1:]
         raise InputError(f"malformed TOML: {_show(message)}", file=source, line=line) from None
     except (ValueError, RecursionError) as err:     # e.g. integers beyond Python's digit limit
-        raise InputError(f"malformed TOML: {_show(str(err).splitlines()[0] if str(err) else type(err).__name__)}",
-                         file=source) from None
+        text_err = str(err).splitlines()[0] if str(err) else type(err).__name__
+        if "int_max_str_digits" in text_err or "integer string conversion" in text_err:
+            # Python's own advice (sys.set_int_max_str_digits) means nothing to a user
+            m = re.search(r"value has (\d+) digits", text_err)
+            digits = f" ({m.group(1)} digits)" if m else ""
+            text_err = f"a whole number is far too long{digits}; no key takes a number that large"
+        elif isinstance(err, RecursionError):
+            text_err = "arrays or tables nested too deeply"
+        long_number = re.search(r"[0-9_]{4000,}", text)
+        line = text.count("\n", 0, long_number.start()) + 1 if long_number else None
+        raise InputError(f"malformed TOML: {_show(text_err)}", file=source, line=line) from None
     _check_schema(ctx, data)
     return data, ctx
 
@@ -751,7 +769,10 @@ def parse_circuit(text: str, source: str = "<string>", *, notes: list[str] | Non
         return Circuit(name=name, supply=supply, breaker=breaker, dimmer=dimmer, loads=tuple(loads),
                        correction=correction, ranges=tuple(ranges))
     except InputError as err:
-        raise ctx.error(err.key, err.reason) from None
+        key = err.key
+        if key == "loads" and len(loads) > 1:
+            key = f"loads[{min(len(loads), 13)}]"     # too many: point at the first one too many
+        raise ctx.error(key, err.reason) from None
 
 
 def read_circuit(path, *, notes: list[str] | None = None) -> Circuit:

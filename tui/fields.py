@@ -11,6 +11,7 @@ from __future__ import annotations
 import dataclasses
 from dataclasses import dataclass
 
+from compat.report import terminal_safe
 from loads.breaker import Breaker, Curve
 from loads.dimmer import Control, Edge, Wiring
 from loads.driver import BleederKind
@@ -279,4 +280,4 @@ def error_text(error: InputError, spec: FieldSpec) -> str:
 
 
 def count_text(group: LoadGroup) -> str:
-    return f"{group.count}× {group.name} {format_number(group.rated_power_w)} W"
+    return f"{group.count}× {terminal_safe(group.name)} {format_number(group.rated_power_w)} W"

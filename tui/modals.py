@@ -13,7 +13,7 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, DirectoryTree, Input, Label, OptionList, Static
 from textual.widgets.option_list import Option
 
-from compat.report import CheckResult, Status
+from compat.report import CheckResult, Status, terminal_safe
 from loads.errors import InputError
 from tui.units import format_number
 from tui.widgets import STATUS_WORDS, format_margin, format_value
@@ -105,7 +105,7 @@ class CheckDetailsScreen(ModalScreen[None]):
                     yield Static("(from the last finished check; the circuit has changed since)", classes="stale-note")
                 yield Static(f"value {format_value(c.value, c.unit)}   limit {format_value(c.limit, c.unit)}   "
                              f"margin {format_margin(c.margin)}", classes="details-figures")
-                yield Static(c.message, classes="details-message", markup=False)
+                yield Static(terminal_safe(c.message), classes="details-message", markup=False)
                 if c.deciding_input:
                     yield Static(f"Decided by the range given for [b]{c.deciding_input}[/b].")
                 yield Static(f"[b]Remedy:[/b] {c.remedy or 'none needed' if c.status is Status.PASS else c.remedy or 'none known'}",
@@ -288,7 +288,7 @@ def _scalar(value) -> str:
         return "—"
     if hasattr(value, "kind") and hasattr(value, "resistance_ohm"):
         from tui.units import format_quantity
-        return (f"{value.name}: {format_quantity(value.series_capacitance_f or value.parallel_capacitance_f, 'F')}"
+        return (f"{terminal_safe(value.name)}: {format_quantity(value.series_capacitance_f or value.parallel_capacitance_f, 'F')}"
                 f" with {format_quantity(value.resistance_ohm, 'Ω')}")
     return str(value)
 
