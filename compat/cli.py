@@ -34,6 +34,7 @@ import os
 import sys
 import threading
 import tomllib
+import warnings
 from collections.abc import Callable, Sequence
 
 from compat.report import terminal_safe
@@ -539,6 +540,8 @@ def main(argv: Sequence[str] | None = None, *, open_app: Callable[[str | None], 
     (without it, ``open`` is not a command and a command is required).  A program ends
     with ``finish(main())``."""
     parser = build_parser(open_app)
+    shown = warnings.showwarning
+    warnings.showwarning = _show_warning
     try:
         args = parser.parse_args(argv)
         if args.command is None:
@@ -570,6 +573,13 @@ def main(argv: Sequence[str] | None = None, *, open_app: Callable[[str | None], 
     except KeyboardInterrupt:
         print(f"{PROG}: interrupted", file=sys.stderr)
         return EXIT_INTERRUPTED
+    finally:
+        warnings.showwarning = shown
+
+
+def _show_warning(message, category, filename, lineno, file=None, line=None) -> None:
+    """A model's warning (outside its data's range) as one line, not Python's two."""
+    print(f"{PROG}: warning: {_one_line(str(message))}", file=sys.stderr)
 
 
 if __name__ == "__main__":

@@ -252,3 +252,14 @@ def test_messages_keep_their_line_and_give_no_python_advice():
     lines = text.splitlines()
     thirteenth = [i for i, s in enumerate(lines) if s == "[[loads]]"][12] + 1
     assert _error_of(text).startswith(f"f.toml:{thirteenth}: loads[13]: 13 lamp groups: at most 12")
+
+
+def test_a_model_warning_is_one_line(tmp_path, capsys):
+    # a filament at 278 K ambient: legal, below the tungsten fit's 300 K; Python's own
+    # warning format (two lines, a source line) reached the user
+    text = RL_277.replace('rated_voltage_v = 277.0\n', 'rated_voltage_v = 277.0\nambient_temperature_k = 278.0\n')
+    assert cli.main(["simulate", str(_write(tmp_path, text)), "--cycles", "1"]) == 0
+    err = capsys.readouterr().err
+    lines = err.splitlines()
+    assert lines and all(ln.startswith("dimfit: warning: ") for ln in lines), err
+    assert any("tungsten" in ln for ln in lines)
