@@ -96,7 +96,7 @@ def legal(values: dict[str, object], rng) -> dict[str, object]:
         v["latching_current_ma"] = float(f"{g('holding_current_ma', 25.0) * rng.uniform(1.0, 3.0):.4g}")
     if "rated_va" in v:
         factor = 1.5 if v.get("kind") == "electronic-transformer" else 2.0
-        v["lamp_power_w"] = float(f"{min(g('lamp_power_w', 50.0), factor * v['rated_va']):.4g}")
+        v["lamp_power_w"] = float(f"{min(g('lamp_power_w', 50.0), 0.99 * factor * v['rated_va']):.4g}")
         if "min_load_w" in v:
             v["min_load_w"] = float(f"{min(v['min_load_w'], 0.5 * v['rated_va']):.4g}")
     rated_v = g("rated_voltage_v", 230.0)
@@ -156,6 +156,7 @@ def random_circuit(rng, n: int) -> str:
 
 def _child(path: str, out_path: str, err_path: str, budget: float) -> None:
     os.environ["DIMFIT_TIME_BUDGET_S"] = repr(budget)
+    os.chdir(os.path.dirname(path))          # bug reports (exit 3) are written beside the circuit
     with open(out_path, "wb") as out, open(err_path, "wb") as err:
         os.dup2(out.fileno(), 1)
         os.dup2(err.fileno(), 2)
@@ -263,6 +264,8 @@ def main(argv=None) -> int:
                 stem = outcome.replace(" ", "-")
                 (keep / f"{stem}-c{n:04d}.toml").write_text(path.read_text())
                 (keep / f"{stem}-c{n:04d}.err").write_text(err)
+                for report in path.parent.glob("dimfit-bug-report-*.toml"):
+                    report.rename(keep / f"{stem}-c{n:04d}-{report.name}")
             del running[n]
             done = sum(counts.values())
             if done % 25 == 0:
