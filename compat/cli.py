@@ -130,8 +130,10 @@ def _bounded(command: str, func, args) -> int:
         if worker.is_alive():
             _Run.cancel.set()
             worker.join(CANCEL_GRACE_S)
-        if worker.is_alive() or isinstance(box.get("error"), _cancelled_type()):
             _Run.abandoned = worker.is_alive()
+            return _stop(EXIT_TIME_BUDGET, f"{command}: stopped after its time budget of {budget:g} s "
+                         "(a larger one: set DIMFIT_TIME_BUDGET_S to the seconds to allow)")
+        if isinstance(box.get("error"), _cancelled_type()):
             return _stop(EXIT_TIME_BUDGET, f"{command}: stopped after its time budget of {budget:g} s "
                          "(a larger one: set DIMFIT_TIME_BUDGET_S to the seconds to allow)")
     except KeyboardInterrupt:
@@ -396,6 +398,8 @@ def cmd_sweep(args) -> int:
     for direction in directions:
         settings = list(reversed(ascending)) if direction == "down" else ascending
         points = sweep(circuit, settings, direction, progress=_progress(f"sweep {direction}"), cancel=_Run.cancel)
+        if _Run.cancel.is_set():             # stopped part-way: no partial curve is shown
+            return EXIT_TIME_BUDGET
         rows += [sweep_row(p) for p in points]
     if args.json:
         print(json.dumps({"schema": 1, "circuit": circuit.name, "sweep": rows}, indent=2, allow_nan=False))
