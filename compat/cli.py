@@ -31,8 +31,10 @@ import dataclasses
 import json
 import math
 import os
+import signal
 import sys
 import threading
+import time
 import tomllib
 import warnings
 from collections.abc import Callable, Sequence
@@ -116,21 +118,33 @@ def _bounded(command: str, func, args) -> int:
         return func(args)
     _Run.cancel = threading.Event()
     box: dict[str, object] = {}
+    # the worker's end is watched with an event of our own, not Thread.join/is_alive: a
+    # KeyboardInterrupt inside join() can leave a running thread marked as stopped
+    finished = threading.Event()
 
     def work():
         try:
+            # Ctrl-C goes to the main thread: the kernel delivers a signal to any thread
+            # that does not block it, and a worker busy in compiled code would hold it
+            # (threads this one starts inherit the mask)
+            if hasattr(signal, "pthread_sigmask"):
+                signal.pthread_sigmask(signal.SIG_BLOCK, {signal.SIGINT, signal.SIGTERM})
             box["code"] = func(args)
         except BaseException as err:   # noqa: BLE001 - handed to the main thread
             box["error"] = err
+        finally:
+            finished.set()
 
     worker = threading.Thread(target=work, name=f"dimfit-{command}", daemon=True)
     try:
         worker.start()
-        worker.join(budget)
-        if worker.is_alive():
+        deadline = time.monotonic() + budget
+        while not finished.is_set() and time.monotonic() < deadline:
+            finished.wait(min(0.1, max(deadline - time.monotonic(), 0.0)))   # short waits: a signal is seen at once
+        if not finished.is_set():
             _Run.cancel.set()
-            worker.join(CANCEL_GRACE_S)
-            _Run.abandoned = worker.is_alive()
+            finished.wait(CANCEL_GRACE_S)
+            _Run.abandoned = not finished.is_set()
             return _stop(EXIT_TIME_BUDGET, f"{command}: stopped after its time budget of {budget:g} s "
                          "(a larger one: set DIMFIT_TIME_BUDGET_S to the seconds to allow)")
         if isinstance(box.get("error"), _cancelled_type()):
@@ -138,7 +152,7 @@ def _bounded(command: str, func, args) -> int:
                          "(a larger one: set DIMFIT_TIME_BUDGET_S to the seconds to allow)")
     except KeyboardInterrupt:
         _Run.cancel.set()
-        _Run.abandoned = worker.is_alive()
+        _Run.abandoned = not finished.is_set()
         raise
     if "error" in box:
         raise box["error"]  # type: ignore[misc]
