@@ -11,7 +11,11 @@
 
 Exit codes: 0 done (``check``: suitable, cautions allowed); 1 ``check`` found the
 circuit unsuitable or a site test needed; 2 bad input (one line on stderr, never a
-traceback).  Heavy modules (the simulator, the checks) are imported inside the command
+traceback); 3 the simulator could not go on with a legal circuit (one line naming the
+element suspected; the circuit and the simulation's settings are written to a new
+``dimfit-bug-report-N.toml`` for a bug report); 4 the command did not finish within its
+time budget (``TIME_BUDGET_S``, or ``$DIMFIT_TIME_BUDGET_S`` seconds); 130 interrupted
+(Ctrl-C: one line, the work abandoned at once).  Heavy modules (the simulator, the checks) are imported inside the command
 that needs them, so ``dimfit catalogue`` and bad-input errors are quick.  Progress goes
 to stderr, and only when stderr is a terminal.
 
@@ -27,17 +31,38 @@ import csv
 import dataclasses
 import json
 import math
+import os
+import signal
 import sys
+import threading
+import time
 import tomllib
+import warnings
 from collections.abc import Callable, Sequence
 
-from loads.errors import InputError
+from compat.report import terminal_safe
+from loads.errors import InputError, SolverError
 
 PROG = "dimfit"
 DEFAULT_DEMO_PATH = "dimfit-demo.toml"
 # One-line form of the cautions for outputs that show figures without a verdict.
 FIGURES_NOTE = ("Figures are model estimates. Mains work only by qualified persons: isolate and prove dead; "
                 "local wiring rules and makers' instructions take precedence.")
+
+
+# Exit codes of their own (see the module docstring).
+EXIT_SOLVER = 3
+EXIT_TIME_BUDGET = 4
+EXIT_INTERRUPTED = 130
+# Engineering choice: the longest each command may take before it stops with a message.
+# A check of the demo takes a few seconds on one core and each range input adds two
+# evaluations; three minutes leave room for a dozen ranges on a slow machine, and a
+# practitioner waiting longer is better told.  Sizing runs many evaluations.  The
+# environment variable DIMFIT_TIME_BUDGET_S (seconds) replaces every budget.
+TIME_BUDGET_S = {"check": 180.0, "demo": 180.0, "simulate": 120.0, "sweep": 180.0, "size": 600.0}
+# How long an abandoned command's worker is given to notice the cancel event.
+CANCEL_GRACE_S = 0.5
+BUG_REPORT_STEM = "dimfit-bug-report"
 
 
 class UsageError(Exception):
@@ -51,7 +76,150 @@ class _Parser(argparse.ArgumentParser):
 
 
 def _one_line(message: str) -> str:
-    return " ".join(str(message).split("\n")).replace("\r", " ")
+    """A message on one line, control characters escaped (it may quote a file)."""
+    return terminal_safe(" ".join(str(message).split("\n")).replace("\r", " "))
+
+
+def _out(text: str) -> None:
+    """Print a command's output: every text in it that came from a file (names) has its
+    control characters escaped; the output's own line breaks are kept."""
+    print(terminal_safe(text, keep_newlines=True))
+
+
+class _Run:
+    """The command being run: its cancel event, and whether work was abandoned (a
+    worker still running when main returned: the process must end at once, see
+    ``finish``)."""
+
+    cancel = threading.Event()
+    abandoned = False
+
+
+def time_budget_s(command: str) -> float | None:
+    """The time budget of ``command`` in seconds (None: unbounded)."""
+    env = os.environ.get("DIMFIT_TIME_BUDGET_S")
+    if env:
+        try:
+            value = float(env)
+        except ValueError:
+            raise InputError(f"{env!r} is not a number of seconds", key="DIMFIT_TIME_BUDGET_S") from None
+        if not 0.0 < value < 1e7:
+            raise InputError(f"{env!r} is not a number of seconds above 0", key="DIMFIT_TIME_BUDGET_S")
+        return value
+    return TIME_BUDGET_S.get(command)
+
+
+def _bounded(command: str, func, args) -> int:
+    """Run ``func(args)`` in a worker thread and wait for it at most the command's time
+    budget.  The main thread only waits, so Ctrl-C (KeyboardInterrupt) reaches it at
+    once; on it, or when the budget runs out, the cancel event is set and the work is
+    abandoned."""
+    budget = time_budget_s(command)
+    if budget is None:
+        return func(args)
+    _Run.cancel = threading.Event()
+    box: dict[str, object] = {}
+    # the worker's end is watched with an event of our own, not Thread.join/is_alive: a
+    # KeyboardInterrupt inside join() can leave a running thread marked as stopped
+    finished = threading.Event()
+
+    def work():
+        try:
+            # Ctrl-C goes to the main thread: the kernel delivers a signal to any thread
+            # that does not block it, and a worker busy in compiled code would hold it
+            # (threads this one starts inherit the mask)
+            if hasattr(signal, "pthread_sigmask"):
+                signal.pthread_sigmask(signal.SIG_BLOCK, {signal.SIGINT, signal.SIGTERM})
+            box["code"] = func(args)
+        except BaseException as err:   # noqa: BLE001 - handed to the main thread
+            box["error"] = err
+        finally:
+            finished.set()
+
+    worker = threading.Thread(target=work, name=f"dimfit-{command}", daemon=True)
+    try:
+        worker.start()
+        deadline = time.monotonic() + budget
+        while not finished.is_set() and time.monotonic() < deadline:
+            finished.wait(min(0.1, max(deadline - time.monotonic(), 0.0)))   # short waits: a signal is seen at once
+        if not finished.is_set():
+            _Run.cancel.set()
+            finished.wait(CANCEL_GRACE_S)
+            _Run.abandoned = not finished.is_set()
+            return _stop(EXIT_TIME_BUDGET, f"{command}: stopped after its time budget of {budget:g} s "
+                         "(a larger one: set DIMFIT_TIME_BUDGET_S to the seconds to allow)")
+        if isinstance(box.get("error"), _cancelled_type()):
+            return _stop(EXIT_TIME_BUDGET, f"{command}: stopped after its time budget of {budget:g} s "
+                         "(a larger one: set DIMFIT_TIME_BUDGET_S to the seconds to allow)")
+    except KeyboardInterrupt:
+        _Run.cancel.set()
+        _Run.abandoned = not finished.is_set()
+        raise
+    if "error" in box:
+        raise box["error"]  # type: ignore[misc]
+    return int(box.get("code", 0))  # type: ignore[arg-type]
+
+
+def _cancelled_type():
+    from compat.runs import Cancelled
+
+    return Cancelled
+
+
+def _stop(code: int, message: str) -> int:
+    print(f"{PROG}: error: {_one_line(message)}", file=sys.stderr)
+    return code
+
+
+def finish(code: int) -> int:
+    """End of the program (not of ``main``): where a command's worker was abandoned
+    (Ctrl-C, time budget) the process ends at once, without waiting for it and without
+    the interpreter's shutdown, whose thread joins a second Ctrl-C would interrupt."""
+    if _Run.abandoned:
+        for stream in (sys.stdout, sys.stderr):
+            try:
+                stream.flush()
+            except (OSError, ValueError):
+                pass
+        os._exit(code)
+    return code
+
+
+def _bug_report(err: SolverError, argv: Sequence[str] | None) -> str:
+    """Write the circuit and the simulation's settings to a new bug-report file in the
+    current folder (else the temporary folder); returns its name ("" if none could be
+    written).  Never overwrites: the first free ``dimfit-bug-report-N.toml``."""
+    import tempfile
+
+    from loads.files import circuit_to_toml, write_text_atomic
+
+    if err.circuit is None:
+        return ""
+    settings = ", ".join(f"{k} = {v!r}" for k, v in err.settings.items())
+    command = " ".join(argv) if argv is not None else " ".join(sys.argv[1:])
+    header = "".join(f"# {_escape(line)}\n" for line in (
+        "dimfit bug report: the simulator could not go on with this circuit.",
+        f"error: {err}", f"command: dimfit {command}", f"simulation settings: {settings}",
+        "The circuit below is the one simulated (a range input at one of its ends where the file has ranges)."))
+    text = header + circuit_to_toml(err.circuit)
+    for folder in (".", tempfile.gettempdir()):
+        for n in range(1, 1000):
+            path = os.path.join(folder, f"{BUG_REPORT_STEM}-{n}.toml")
+            if os.path.exists(path):
+                continue
+            try:
+                write_text_atomic(path, text, overwrite=False)
+            except InputError as write_err:
+                if "already exists" in write_err.reason:
+                    continue
+                break
+            return path
+    return ""
+
+
+def _escape(text: str) -> str:
+    """Text from a file made safe for a terminal (``report.terminal_safe``)."""
+    return terminal_safe(text)
 
 
 def _fail(message: str) -> int:
@@ -72,9 +240,15 @@ def _simulator():
 
 
 def _read(path: str):
+    """The circuit in ``path``; a legal but unusual value gives one warning line each
+    on stderr (the physical ranges of the file reference, ``loads.files.PHYSICAL``)."""
     from loads.files import read_circuit
 
-    return read_circuit(path)
+    notes: list[str] = []
+    circuit = read_circuit(path, notes=notes)
+    for note in notes:
+        print(f"{PROG}: warning: {_one_line(note)}", file=sys.stderr)
+    return circuit
 
 
 def _progress(label: str):
@@ -107,13 +281,13 @@ def _check_and_print(circuit, *, as_json: bool = False, as_markdown: bool = Fals
         return _fail(f"the checks are not available in this installation ({err})")
     from compat.report import Verdict
 
-    report = evaluate(circuit, progress=_progress("checking"))
+    report = evaluate(circuit, progress=_progress("checking"), cancel=_Run.cancel)
     if as_json:
         print(json.dumps(report.to_json(), indent=2, allow_nan=False, default=_json_default))
     elif as_markdown:
-        print(render_markdown(report, circuit))
+        _out(render_markdown(report, circuit))
     else:
-        print(render_table(report))
+        _out(render_table(report))
     return 0 if report.verdict in (Verdict.SUITABLE, Verdict.SUITABLE_WITH_CAUTIONS) else 1
 
 
@@ -220,7 +394,7 @@ def cmd_simulate(args) -> int:
         for row in zip(result.t_s, result.supply_v, result.load_v, result.load_a, result.dimmer_a):
             writer.writerow([f"{float(x):.9g}" for x in row])
     else:
-        print(_simulation_table(circuit, result, start=args.start))
+        _out(_simulation_table(circuit, result, start=args.start))
     return 0
 
 
@@ -251,7 +425,9 @@ def cmd_sweep(args) -> int:
     rows = []
     for direction in directions:
         settings = list(reversed(ascending)) if direction == "down" else ascending
-        points = sweep(circuit, settings, direction, progress=_progress(f"sweep {direction}"))
+        points = sweep(circuit, settings, direction, progress=_progress(f"sweep {direction}"), cancel=_Run.cancel)
+        if _Run.cancel.is_set():             # stopped part-way: no partial curve is shown
+            return EXIT_TIME_BUDGET
         rows += [sweep_row(p) for p in points]
     if args.json:
         print(json.dumps({"schema": 1, "circuit": circuit.name, "sweep": rows}, indent=2, allow_nan=False))
@@ -269,7 +445,7 @@ def cmd_sweep(args) -> int:
                      f"{cell(r['load_rms_a'], 7, '.3f')} {cell(r['power_w'], 8, '.1f')} {cell(light, 8, '.1f')}  "
                      f"{'yes' if r['stable'] else 'NO'}")
     lines += ["", FIGURES_NOTE]
-    print("\n".join(lines))
+    _out("\n".join(lines))
     return 0
 
 
@@ -287,7 +463,7 @@ def cmd_size(args) -> int:
     if args.json:
         print(json.dumps(result, indent=2, allow_nan=False, default=_json_default))
     else:
-        print(render_sizing(result))
+        _out(render_sizing(result))
     return 0
 
 
@@ -299,7 +475,7 @@ def cmd_demo(args) -> int:
 
     circuit = demo_circuit()
     write_text_atomic(args.path, demo_text(), overwrite=False)
-    print(f"wrote the demo circuit to {args.path}", file=sys.stderr)
+    print(f"wrote the demo circuit to {_one_line(args.path)}", file=sys.stderr)
     code = _check_and_print(circuit)
     # The demo's job is done once its check is shown, whatever the verdict.
     return 0 if code in (0, 1) else code
@@ -405,15 +581,25 @@ def build_parser(open_app: Callable[[str | None], int | None] | None = None) -> 
 
 def main(argv: Sequence[str] | None = None, *, open_app: Callable[[str | None], int | None] | None = None) -> int:
     """Run the command line; returns the exit code.  ``open_app``: see ``_open_command``
-    (without it, ``open`` is not a command and a command is required)."""
+    (without it, ``open`` is not a command and a command is required).  A program ends
+    with ``finish(main())``."""
     parser = build_parser(open_app)
+    shown = warnings.showwarning
+    warnings.showwarning = _show_warning
     try:
         args = parser.parse_args(argv)
         if args.command is None:
             if open_app is None:
                 raise UsageError("a command is required")
             return _open_command(open_app)(argparse.Namespace(file=None))
+        if args.command in TIME_BUDGET_S:
+            return _bounded(args.command, args.func, args)
         return args.func(args)
+    except SolverError as err:
+        where = _bug_report(err, argv)
+        tail = (f"; the circuit and settings are in {where} for a bug report" if where
+                else "; no bug report could be written")
+        return _stop(EXIT_SOLVER, f"{_escape(str(err))}{tail}")
     except UsageError as err:
         return _fail(f"{err} (see {PROG} --help)")
     except SystemExit as exc:            # --help and friends
@@ -430,8 +616,15 @@ def main(argv: Sequence[str] | None = None, *, open_app: Callable[[str | None], 
         return _fail(f"{where}{err.strerror or err}")
     except KeyboardInterrupt:
         print(f"{PROG}: interrupted", file=sys.stderr)
-        return 130
+        return EXIT_INTERRUPTED
+    finally:
+        warnings.showwarning = shown
+
+
+def _show_warning(message, category, filename, lineno, file=None, line=None) -> None:
+    """A model's warning (outside its data's range) as one line, not Python's two."""
+    print(f"{PROG}: warning: {_one_line(str(message))}", file=sys.stderr)
 
 
 if __name__ == "__main__":
-    sys.exit(main())
+    sys.exit(finish(main()))

@@ -24,7 +24,7 @@ from compat.report import CheckResult, Report, Status
 from compat.runs import Cancelled, Evidence, SettingRun
 from compat.switch_on import INRUSH_ANGLES_DEG, breaker_max_counts, default_simulator, switch_on_runs
 from compat.verdict import attached_cautions, overall
-from loads.circuit import Circuit
+from loads.circuit import Circuit, with_range_end
 from loads.dimmer import Edge
 from loads.errors import InputError
 
@@ -47,6 +47,9 @@ HARMONICS_SAMPLES_PER_CYCLE = 4000
 HARMONICS_CYCLES = 2
 # Engineering choice: evaluate each range input at its two ends with the others at
 # their midpoint (1 + 2k runs) rather than all 2^k corners, to keep the check quick.
+# An end that would cross a field kept in order with it (latching below holding) moves
+# that field to it, latching = holding (loads.circuit.ORDERED_FIELDS), so that each
+# end is a device that exists.
 RANGE_MODE = "one-at-a-time"
 
 SWEEP_KEYS = ("direction", "setting", "firing_angle_deg", "conduction_angle_deg", "load_rms_v", "load_rms_a",
@@ -332,8 +335,12 @@ def set_path(obj, path: str, value):
             raise InputError(f"there is no {name}[{idx}] (the file has {len(seq)})", key=path)
         seq[i] = set_path(seq[i], rest, value) if rest else _like(seq[i], value)
         new = tuple(seq)
+    elif not rest:
+        # a leaf: the fields ordered with it follow (latching ≥ holding), so that a
+        # range end builds a device that exists (loads.circuit.ORDERED_FIELDS)
+        return with_range_end(obj, name, _like(cur, value))
     else:
-        new = set_path(cur, rest, value) if rest else _like(cur, value)
+        new = set_path(cur, rest, value)
     return dataclasses.replace(obj, **{name: new})
 
 

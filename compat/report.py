@@ -66,3 +66,17 @@ class Report:
         return {"schema": 1, "circuit": self.circuit, "verdict": str(self.verdict),
                 "checks": [c.to_json() for c in self.checks], "sweep": list(self.sweep),
                 "cautions": list(self.cautions)}
+
+
+def terminal_safe(text: str, *, keep_newlines: bool = False) -> str:
+    """``text`` with every character a terminal would act on rather than show (escape
+    sequences, carriage return, backspace, bell, bidirectional overrides...) written as
+    its Python escape (``\\x1b``), so that a name from a file cannot retitle, clear or
+    rewrite the screen.  ``keep_newlines``: leave line feeds (a whole output's lines)."""
+    out = []
+    for ch in str(text):
+        if ch.isprintable() or (keep_newlines and ch == "\n"):
+            out.append(ch)
+        else:
+            out.append(ch.encode("unicode_escape").decode("ascii"))
+    return "".join(out)

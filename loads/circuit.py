@@ -1,6 +1,7 @@
 """A whole circuit: supply, optional breaker, dimmer, lamp groups, correction device."""
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass, field
 
 from loads.breaker import Breaker
@@ -35,6 +36,39 @@ class Range:
     file_key: str
     low: float
     high: float
+
+
+# Fields of one table that keep an order, (lower, upper): a triac latches at no less
+# than the current that holds it (latching ≥ holding, TEXTBOOK_TRIAC, from memory); a
+# converter stops at no more than the voltage it starts at (its hysteresis).
+# When one end of a range input would cross the other field's value, the other field
+# is moved to it (latching = holding, the least a switch can have): the range end
+# stands for a device that exists, and two ranges that overlap (holding {10, 50},
+# latching {25, 100} mA) are legal.
+ORDERED_FIELDS: dict[type, tuple[tuple[str, str], ...]] = {
+    Dimmer: (("holding_current_a", "latching_current_a"),),
+    ElectronicDriver: (("stop_voltage_v", "start_voltage_v"),),
+}
+
+
+def paired_values(cls: type, values: dict, field_name: str, value) -> dict:
+    """``values`` (field -> value of one ``cls`` table) with ``field_name`` set to
+    ``value`` and any field ordered with it moved so that the order holds."""
+    out = dict(values, **{field_name: value})
+    for lower, upper in ORDERED_FIELDS.get(cls, ()):
+        if field_name == lower and out.get(upper) is not None and out[upper] < value:
+            out[upper] = value
+        elif field_name == upper and out.get(lower) is not None and out[lower] > value:
+            out[lower] = value
+    return out
+
+
+def with_range_end(obj, field_name: str, value):
+    """A copy of the frozen dataclass ``obj`` with one field at a range end (and the
+    fields ordered with it kept in order, see ``ORDERED_FIELDS``)."""
+    values = {f.name: getattr(obj, f.name) for f in dataclasses.fields(obj)}
+    new = paired_values(type(obj), values, field_name, value)
+    return dataclasses.replace(obj, **{k: v for k, v in new.items() if k == field_name or v != values[k]})
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)

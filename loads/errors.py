@@ -37,6 +37,27 @@ class InputError(ValueError):
         return ": ".join(where + [self.reason])
 
 
+class SolverError(RuntimeError):
+    """The simulator could not go on with a legal circuit (its step size collapsed).
+
+    ``str()`` is one line: where it stopped and the element suspected.  ``circuit`` is
+    the circuit simulated (a range end where ranges are evaluated) and ``settings`` the
+    simulation's settings, for a bug report."""
+
+    def __init__(self, reason: str, *, t_s: float | None = None, outputs=None, suspect: str | None = None,
+                 circuit=None, settings: dict | None = None) -> None:
+        self.reason = reason
+        self.t_s = t_s
+        self.outputs = outputs
+        self.suspect = suspect
+        self.circuit = circuit
+        self.settings = dict(settings or {})
+        super().__init__(reason)
+
+    def __str__(self) -> str:
+        return self.reason + (f"; suspected element: {self.suspect}" if self.suspect else "")
+
+
 class ModelRangeWarning(UserWarning):
     """A model is being used outside the range its data or equations cover."""
 

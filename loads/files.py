@@ -41,7 +41,7 @@ from pathlib import Path
 import tomli_w
 
 from loads.breaker import Breaker
-from loads.circuit import LOAD_CLASSES, Circuit, Range
+from loads.circuit import LOAD_CLASSES, Circuit, Range, paired_values
 from loads.dimmer import Dimmer, RcDiac
 from loads.errors import InputError
 from loads.linear import Linear
@@ -106,6 +106,119 @@ RANGEABLE: frozenset[tuple[type, str]] = frozenset({
       ("input_capacitance_f", "bulk_capacitance_f", "series_resistance_ohm", "start_voltage_v", "bleeder_a",
        "input_damping_ohm")),
 })
+
+
+
+class Physical(typing.NamedTuple):
+    """The physical range of one numeric key, in the key's FILE unit.
+
+    Outside ``low``–``high`` a value is refused (one-line error): no real part has it,
+    and the simulator's steps collapse or a division by zero waits there.  Inside, but
+    outside ``usual_low``–``usual_high``, it is read with a one-line warning (legal but
+    unusual: check the figure).  ``zero``: exactly 0 is also accepted and means "none"
+    (no snubber, no choke...), which the models treat as absent rather than tiny."""
+
+    low: float
+    high: float
+    usual_low: float
+    usual_high: float
+    zero: bool = False
+
+
+# The file reference's physical ranges, per field (SI field name; the bounds in the
+# file unit of its key).  Origins: the outer bounds are engineering choices, a decade
+# or more beyond any part of the trade (common practice, no source) and inside what the
+# simulator resolves; the usual bounds are the span of ordinary parts (common practice,
+# no source).  tests/loads/test_physical_ranges.py checks that every float key has a row.
+PHYSICAL: dict[str, Physical] = {
+    # supply
+    "voltage_v": Physical(10.0, 1000.0, 90.0, 300.0),
+    "frequency_hz": Physical(10.0, 1000.0, 45.0, 65.0),
+    "source_resistance_ohm": Physical(0.0, 100.0, 0.01, 5.0, zero=True),   # 0: an ideal source
+    "source_inductance_h": Physical(0.0, 1e5, 1.0, 5000.0, zero=True),     # µH; 0: an ideal source
+    "wiring_capacitance_f": Physical(0.01, 1e4, 0.1, 200.0, zero=True),  # nF (≈ 100 pF/m of cable)
+    # breaker
+    "rated_current_a": Physical(0.5, 125.0, 2.0, 63.0),
+    "instantaneous_trip_a": Physical(1.0, 1e5, 5.0, 2000.0),
+    # rc-diac timing network
+    "fixed_resistance_ohm": Physical(10.0, 1e7, 470.0, 1e5),
+    "variable_resistance_ohm": Physical(0.0, 1e8, 1e4, 2e6),
+    "timing_capacitance_f": Physical(1.0, 1e4, 22.0, 1000.0),       # nF
+    "breakover_v": Physical(5.0, 200.0, 20.0, 45.0),
+    "snapback_v": Physical(0.0, 100.0, 1.0, 20.0),
+    "asymmetry_v": Physical(-50.0, 50.0, -5.0, 5.0),
+    "gate_resistance_ohm": Physical(1.0, 1e5, 10.0, 2000.0),
+    "diac_off_current_a": Physical(0.001, 100.0, 0.1, 10.0),          # mA
+    # dimmer
+    "rated_load_w": Physical(1.0, 1e4, 20.0, 3600.0),
+    "rated_transformer_va": Physical(1.0, 1e4, 20.0, 3600.0),
+    "rated_led_w": Physical(1.0, 1e4, 5.0, 2000.0),
+    "min_load_w": Physical(0.0, 1e4, 0.0, 100.0),
+    "ambient_temperature_c": Physical(-20.0, 60.0, -10.0, 45.0),
+    "holding_current_a": Physical(0.01, 1000.0, 1.0, 100.0),         # mA
+    "latching_current_a": Physical(0.01, 2000.0, 1.0, 200.0),        # mA
+    "gate_trigger_current_a": Physical(0.01, 1000.0, 1.0, 100.0),    # mA
+    "gate_window_s": Physical(1.0, 9999.0, 10.0, 5000.0),            # µs
+    "on_state_voltage_v": Physical(0.0, 4.99, 0.5, 2.0, zero=True),   # 0: an ideal switch
+    "on_state_resistance_ohm": Physical(1e-4, 10.0, 1e-3, 1.0),
+    "surge_peak_a": Physical(1.0, 1e4, 10.0, 1000.0),
+    "surge_i2t_a2s": Physical(0.01, 1e5, 0.5, 5000.0),
+    "repetitive_peak_a": Physical(0.1, 1000.0, 1.0, 200.0),
+    "commutating_di_dt_a_per_s": Physical(0.0, 1e4, 0.5, 100.0),     # A/ms
+    "triac_turn_off_time_s": Physical(0.0, 1000.0, 5.0, 200.0),      # µs
+    "choke_inductance_h": Physical(1.0, 1e5, 10.0, 2000.0, zero=True),  # µH
+    "snubber_capacitance_f": Physical(0.1, 1e4, 4.7, 470.0, zero=True),  # nF
+    "snubber_resistance_ohm": Physical(1.0, 1e6, 10.0, 1e4),
+    "self_supply_a": Physical(0.01, 100.0, 0.1, 20.0, zero=True),    # mA
+    "clamp_voltage_v": Physical(50.0, 2000.0, 150.0, 1000.0),
+    "turn_off_time_s": Physical(0.1, 1000.0, 5.0, 300.0, zero=True),  # µs
+    "trip_current_a": Physical(0.1, 1000.0, 1.0, 100.0),
+    "soft_start_s": Physical(0.0, 5000.0, 0.0, 1000.0),              # ms
+    "min_firing_angle_deg": Physical(0.0, 180.0, 0.0, 60.0),
+    "max_firing_angle_deg": Physical(0.0, 180.0, 120.0, 180.0),
+    # every lamp group
+    "rated_power_w": Physical(0.1, 1e4, 1.0, 2000.0),
+    "rated_voltage_v": Physical(10.0, 1000.0, 90.0, 300.0),
+    # filament
+    "operating_temperature_k": Physical(1500.0, 3400.0, 2300.0, 3300.0),
+    "ambient_temperature_k": Physical(250.0, 400.0, 263.0, 318.0),
+    # transformers
+    "rated_va": Physical(0.1, 1e4, 5.0, 1000.0),
+    "secondary_voltage_v": Physical(0.5, 1000.0, 6.0, 48.0),
+    "lamp_power_w": Physical(0.0, 2e4, 1.0, 1000.0),
+    "winding_resistance_pct": Physical(0.01, 49.99, 1.0, 20.0),
+    "leakage_reactance_pct": Physical(0.01, 49.99, 0.5, 20.0),
+    "magnetising_current_pct": Physical(0.01, 49.99, 1.0, 30.0),
+    "core_loss_pct": Physical(0.01, 49.99, 0.5, 10.0),
+    "saturation_flux_ratio": Physical(1.001, 2.999, 1.05, 2.0),
+    "saturated_inductance_ratio": Physical(1e-4, 0.999, 1e-3, 0.2),
+    # electronic drivers and transformers
+    "input_capacitance_f": Physical(0.01, 1e5, 1.0, 1000.0, zero=True),   # nF
+    "series_resistance_ohm": Physical(0.01, 1e4, 0.5, 200.0),
+    "input_damping_ohm": Physical(0.1, 1e5, 10.0, 1000.0, zero=True),   # 0: no damper
+    "bulk_capacitance_f": Physical(1e-4, 1e4, 0.47, 1000.0),              # µF
+    "start_voltage_v": Physical(0.0, 1500.0, 10.0, 300.0),
+    "stop_voltage_v": Physical(0.1, 1500.0, 5.0, 300.0),
+    "bleeder_a": Physical(0.0, 1000.0, 0.0, 50.0),                        # mA
+    "min_light_fraction": Physical(0.0, 99.9, 0.1, 20.0),                 # %
+    "converter_power_w": Physical(0.1, 1e4, 0.5, 2000.0),
+    # linear (and the correction device)
+    "resistance_ohm": Physical(0.1, 1e7, 1.0, 1e5),
+    "inductance_h": Physical(1e-3, 1e5, 0.01, 5000.0, zero=True),        # mH
+    "parallel_capacitance_f": Physical(0.01, 1e5, 1.0, 1e4, zero=True),  # nF
+    "series_capacitance_f": Physical(1.0, 1e5, 10.0, 1e4, zero=True),    # nF
+}
+
+# Units of keys kept in SI, for messages (the suffix of the key).
+_SUFFIX_UNIT = {"_v": "V", "_hz": "Hz", "_ohm": "Ω", "_w": "W", "_va": "VA", "_a": "A", "_k": "K", "_c": "°C",
+                "_deg": "°", "_a2s": "A²s"}
+
+
+def unit_of(key: "Key") -> str:
+    """The unit of a file key as shown in messages ("" for ratios)."""
+    if key.file_unit:
+        return key.file_unit
+    return next((u for suffix, u in _SUFFIX_UNIT.items() if key.file_key.endswith(suffix)), "")
 
 
 @dataclass(frozen=True, slots=True)
@@ -244,6 +357,7 @@ def _line_index(text: str) -> dict[str, int]:
             aot_count[name] = aot_count.get(name, 0) + 1
             current = [f"{name}[{aot_count[name]}]"]
             index.setdefault(current[0], lineno)
+            _index_parents(index, name.split(".") + [""], lineno)    # the array itself: its first table
         else:
             m = _TABLE_RE.match(line)
             if m:
@@ -252,6 +366,7 @@ def _line_index(text: str) -> dict[str, int]:
                     parts = [f"{parts[0]}[{aot_count[parts[0]]}]"] + parts[1:]
                 current = [".".join(parts)]
                 index.setdefault(current[0], lineno)
+                _index_parents(index, parts, lineno)   # [a.b] alone also defines a
             else:
                 m = _KEY_RE.match(line)
                 if m:
@@ -264,13 +379,26 @@ def _line_index(text: str) -> dict[str, int]:
     return index
 
 
+def _index_parents(index: dict[str, int], parts: list[str], lineno: int) -> None:
+    """Point each enclosing table of a header (``dimmer`` for ``[dimmer.rc_diac]``) at
+    it, where the file has no header of its own for that table (yet)."""
+    for i in range(1, len(parts)):
+        index.setdefault(".".join(parts[:i]), lineno)
+
+
 class _Context:
     """The file being read: its name and where its keys are."""
 
-    def __init__(self, text: str, source: str) -> None:
+    def __init__(self, text: str, source: str, notes: list[str] | None = None) -> None:
         self.source = source
         self._text = text
         self._index: dict[str, int] | None = None
+        self.notes = notes
+
+    def warn(self, path: str | None, reason: str) -> None:
+        """A one-line warning (legal but unusual), kept where the caller asked."""
+        if self.notes is not None:
+            self.notes.append(str(self.error(path, reason)))
 
     def line_of(self, path: str | None) -> int | None:
         if not path:
@@ -400,6 +528,51 @@ def _model_error(ctx: _Context, prefix: str, cls: type, kwargs: dict, err: Input
     return ctx.error(path, reason + note)
 
 
+def physical_problem(key: Key, file_value) -> tuple[str, str] | None:
+    """("error" | "warning", reason) for a file value outside its key's physical or
+    usual range (``PHYSICAL``), else None."""
+    row = PHYSICAL.get(key.field)
+    if row is None or file_value is None:
+        return None
+    x = float(file_value)
+    if row.zero and x == 0.0:
+        return None
+    unit = unit_of(key)
+    u = f" {unit}" if unit else ""
+    if not row.low <= x <= row.high:
+        zero = " (or 0 for none)" if row.zero else ""
+        return "error", (f"{_fmt(x)}{u} is not physical for this key: the file reference allows "
+                         f"{_fmt(row.low)}–{_fmt(row.high)}{u}{zero}")
+    if not row.usual_low <= x <= row.usual_high:
+        return "warning", (f"{_fmt(x)}{u} is unusual (ordinary parts: {_fmt(row.usual_low)}–"
+                           f"{_fmt(row.usual_high)}{u}); check the figure")
+    return None
+
+
+def _check_physical(ctx: "_Context", path: str, key: Key, file_value, prefix: str = "") -> None:
+    found = physical_problem(key, file_value)
+    if found is None:
+        return
+    level, reason = found
+    if level == "error":
+        raise ctx.error(path, prefix + reason)
+    ctx.warn(path, prefix + reason)
+
+
+def check_physical(cls: type, field: str, si_value) -> str | None:
+    """For a value typed outside a file (the app): raise InputError if ``si_value`` is
+    outside the field's physical range; return the one-line warning if it is unusual."""
+    key = next((k for k in KEYS.get(cls, {}).values() if k.field == field), None)
+    if key is None or si_value is None or key.kind not in ("float", "int") or isinstance(si_value, bool):
+        return None
+    found = physical_problem(key, float(si_value) * key.per_si)
+    if found is None:
+        return None
+    if found[0] == "error":
+        raise InputError(found[1], key=key.file_key)
+    return f"{key.file_key}: {found[1]}"
+
+
 def _read_range(ctx: _Context, path: str, key: Key, value: dict) -> tuple[float, float]:
     if set(value) != {"min", "max"}:
         extra = sorted(set(value) - {"min", "max"})
@@ -424,6 +597,7 @@ def _read_table(ctx: _Context, cls: type, table, prefix: str, *, allowed: typing
     kwargs: dict[str, object] = {}
     ranged: dict[str, tuple[float, float, str]] = {}     # field -> (low, high, file path)
     nested_ranges: list[Range] = []
+    physical: list[tuple[str, Key, object, str]] = []   # checked once the model has had its say
     for name, value in table.items():
         if name in skip:
             continue
@@ -440,10 +614,14 @@ def _read_table(ctx: _Context, cls: type, table, prefix: str, *, allowed: typing
             if not key.rangeable:
                 raise ctx.error(path, "a range {min, max} is not allowed for this key; give one value")
             low, high = _read_range(ctx, path, key, value)
+            for end, bound in (("min", value["min"]), ("max", value["max"])):
+                physical.append((path, key, bound, f"range {end}: "))
             ranged[key.field] = (low, high, path)
             kwargs[key.field] = 0.5 * (low + high)
             continue
         kwargs[key.field] = _convert(ctx, path, key, value)
+        if key.kind in ("float", "int"):
+            physical.append((path, key, value, ""))
     for name in required_keys:
         if name not in table:
             raise ctx.error(f"{prefix}.{name}", "required key is missing")
@@ -454,9 +632,15 @@ def _read_table(ctx: _Context, cls: type, table, prefix: str, *, allowed: typing
         obj = cls(**kwargs)
     except InputError as err:
         raise _model_error(ctx, prefix, cls, kwargs, err) from None
+    except ArithmeticError:          # a value so far out that the model's own sums fail
+        for args in physical:
+            _check_physical(ctx, *args)
+        raise
     for field, (low, high, path) in ranged.items():
         for end, bound in (("min", low), ("max", high)):
-            trial = dict(kwargs, **{field: bound})
+            # each end as the evaluation builds it: the others at their midpoints, a
+            # field kept in order with this one moved with it (latching ≥ holding)
+            trial = paired_values(cls, kwargs, field, bound)
             try:
                 cls(**trial)
             except InputError as err:
@@ -466,6 +650,8 @@ def _read_table(ctx: _Context, cls: type, table, prefix: str, *, allowed: typing
                     raise InputError(f"range {end}: {e.reason}", key=e.key, file=e.file, line=e.line) from None
                 raise _model_error(ctx, prefix, cls, trial, err,
                                    note=f" (with {file_key} at its {end} {_fmt(bound * keys[file_key].per_si)})") from None
+    for args in physical:
+        _check_physical(ctx, *args)
     ranges = [Range(f"{prefix}.{field}", path, low, high) for field, (low, high, path) in ranged.items()]
     return obj, nested_ranges + ranges
 
@@ -495,8 +681,8 @@ def _read_loads(ctx: _Context, value) -> tuple[list[LoadGroup], list[Range]]:
     return groups, ranges
 
 
-def _load_toml(text: str, source: str) -> tuple[dict, _Context]:
-    ctx = _Context(text, source)
+def _load_toml(text: str, source: str, notes: list[str] | None = None) -> tuple[dict, _Context]:
+    ctx = _Context(text, source, notes)
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as err:
@@ -512,8 +698,17 @@ def _load_toml(text: str, source: str) -> tuple[dict, _Context]:
         message = message[:1].lower() + message[1:]
         raise InputError(f"malformed TOML: {_show(message)}", file=source, line=line) from None
     except (ValueError, RecursionError) as err:     # e.g. integers beyond Python's digit limit
-        raise InputError(f"malformed TOML: {_show(str(err).splitlines()[0] if str(err) else type(err).__name__)}",
-                         file=source) from None
+        text_err = str(err).splitlines()[0] if str(err) else type(err).__name__
+        if "int_max_str_digits" in text_err or "integer string conversion" in text_err:
+            # Python's own advice (sys.set_int_max_str_digits) means nothing to a user
+            m = re.search(r"value has (\d+) digits", text_err)
+            digits = f" ({m.group(1)} digits)" if m else ""
+            text_err = f"a whole number is far too long{digits}; no key takes a number that large"
+        elif isinstance(err, RecursionError):
+            text_err = "arrays or tables nested too deeply"
+        long_number = re.search(r"[0-9_]{4000,}", text)
+        line = text.count("\n", 0, long_number.start()) + 1 if long_number else None
+        raise InputError(f"malformed TOML: {_show(text_err)}", file=source, line=line) from None
     _check_schema(ctx, data)
     return data, ctx
 
@@ -542,9 +737,10 @@ def _read_bytes(path) -> bytes:
         raise InputError(f"cannot read the file: {err.strerror or err}", file=str(path)) from None
 
 
-def parse_circuit(text: str, source: str = "<string>") -> Circuit:
-    """A circuit from the text of a circuit file; ``source`` names it in messages."""
-    data, ctx = _load_toml(text, source)
+def parse_circuit(text: str, source: str = "<string>", *, notes: list[str] | None = None) -> Circuit:
+    """A circuit from the text of a circuit file; ``source`` names it in messages.
+    ``notes``: a list that gets one line per legal but unusual value (``PHYSICAL``)."""
+    data, ctx = _load_toml(text, source, notes)
     for name in data:
         if name not in _CIRCUIT_TOP:
             raise _unknown(ctx, name, name, _CIRCUIT_TOP)
@@ -575,12 +771,15 @@ def parse_circuit(text: str, source: str = "<string>") -> Circuit:
         return Circuit(name=name, supply=supply, breaker=breaker, dimmer=dimmer, loads=tuple(loads),
                        correction=correction, ranges=tuple(ranges))
     except InputError as err:
-        raise ctx.error(err.key, err.reason) from None
+        key = err.key
+        if key == "loads" and len(loads) > 1:
+            key = f"loads[{min(len(loads), 13)}]"     # too many: point at the first one too many
+        raise ctx.error(key, err.reason) from None
 
 
-def read_circuit(path) -> Circuit:
-    """Read a circuit file [path]."""
-    return parse_circuit(_decode(_read_bytes(path), str(path)), str(path))
+def read_circuit(path, *, notes: list[str] | None = None) -> Circuit:
+    """Read a circuit file [path]; ``notes``: see ``parse_circuit``."""
+    return parse_circuit(_decode(_read_bytes(path), str(path)), str(path), notes=notes)
 
 
 def parse_profile(text: str, source: str = "<string>") -> tuple[Dimmer | list[LoadGroup], tuple[Range, ...]]:

@@ -300,7 +300,15 @@ def _open_dimmer_voltage(y, isw, P, IP):
     if IP[CONTROL] == RC_DIAC:
         g += 1.0 / P[RT]
         i0 += y[VT] / P[RT]
-    return i0 / g
+    vd = i0 / g
+    if P[ISS] > 0.0 and abs(vd) > SELF_SUPPLY_KNEE_V:
+        # past its knee the self-supply draws a constant current, no more: the voltage
+        # the other paths need is then larger (an inductive load's current, forced on by
+        # its stored energy, would otherwise be left without the clamp and drive the
+        # dimmer to kilovolts: the step collapsed there)
+        sign = 1.0 if vd > 0.0 else -1.0
+        vd = (i0 - sign * P[ISS]) / (g - P[ISS] / SELF_SUPPLY_KNEE_V)
+    return vd
 
 
 @numba.njit(cache=True, _nrt=False)

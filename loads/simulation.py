@@ -27,7 +27,7 @@ from loads import linear as _lin
 from loads import transformer as _tr
 from loads.circuit import Circuit
 from loads.dimmer import Control, Edge, GateDrive
-from loads.errors import InputError
+from loads.errors import InputError, SolverError
 from loads.load import LoadKind
 
 
@@ -433,7 +433,11 @@ def _run(pk: _Packed, state: _State, cycles: float, samples_per_cycle: int):
         rc = K.run(t0, t_end, y, P2, pk.IP, s, q, pk.gk, pk.gxo, pk.gpo, pk.gnp, pk.gn, pk.GP,
                    pk.atol * factor, pk.scale, t0, dt, out, hc, counters)
     if rc != 0:
-        raise RuntimeError(f"the solver's step size collapsed near t = {t0:.6f} s; please report this circuit")
+        filled = np.nonzero(np.any(out != 0.0, axis=1))[0]
+        k = int(filled[-1]) if filled.size else 0
+        t_fail = t0 + k * dt
+        raise SolverError(f"the simulator could not go on at t = {1e3 * t_fail:.3f} ms (its step size collapsed)",
+                          t_s=t_fail, outputs=out[k].copy())
     last = int(s[K.HCIDX])
     # keep only half-cycles that ended inside the run
     n_done = min(last, n_half)
@@ -678,6 +682,44 @@ def simulate(circuit: Circuit, *, setting: float | None = None, firing_angle_deg
     _announce_compile()
     if firing_angle_deg is None and setting is None:
         setting = 1.0
+    try:
+        return _simulate(circuit, setting=setting, firing_angle_deg=firing_angle_deg, cycles=cycles, start=start,
+                         switch_on_deg=switch_on_deg, no_firing=no_firing, samples_per_cycle=samples_per_cycle,
+                         tolerance=tolerance, settle_lamps=settle_lamps)
+    except SolverError as err:
+        settings = {"setting": setting, "firing_angle_deg": firing_angle_deg, "cycles": cycles,
+                    "start": start.value if isinstance(start, Start) else
+                    (str(start) if isinstance(start, str) else "a state carried from the previous run"),
+                    "switch_on_deg": switch_on_deg, "no_firing": no_firing,
+                    "samples_per_cycle": samples_per_cycle, "tolerance": tolerance, "settle_lamps": settle_lamps}
+        raise SolverError(err.reason, t_s=err.t_s, outputs=err.outputs, suspect=suspected_element(circuit, err.outputs),
+                          circuit=circuit, settings=settings) from None
+
+
+def suspected_element(circuit: Circuit, outputs) -> str | None:
+    """The element whose figure at the point of failure is furthest beyond its scale
+    (engineering choice: the dimmer's voltage against its clamp or 1.5× the supply peak,
+    the load terminals' voltage against 1.5× the peak, a group's current against 20× its
+    rated peak current); a guide for the bug report, not a diagnosis."""
+    if outputs is None:
+        return None
+    o = np.asarray(outputs, dtype=float)
+    peak = circuit.supply.peak_v
+    d = circuit.dimmer
+    vd_scale = d.clamp_voltage_v if d.edge is Edge.TRAILING else 1.5 * peak
+    cand = [(abs(o[K.O_VD]) / vd_scale, f"the dimmer ({o[K.O_VD]:.0f} V across it)"),
+            (abs(o[K.O_VB]) / (1.5 * peak), f"the load terminals and cable capacitance ({o[K.O_VB]:.0f} V)")]
+    for g, ld in enumerate(circuit.all_loads):
+        rated_peak = math.sqrt(2.0) * ld.count * ld.rated_power_w / ld.rated_voltage_v
+        i = o[K.N_O0 + g] if K.N_O0 + g < o.size else 0.0
+        what = "the correction device" if ld is circuit.correction else f"lamp group {g + 1} '{ld.name}'"
+        cand.append((abs(i) / (20.0 * max(rated_peak, 1e-6)), f"{what} ({i:.3g} A)"))
+    cand = [(r if np.isfinite(r) else np.inf, name) for r, name in cand]
+    return max(cand, key=lambda c: c[0])[1]
+
+
+def _simulate(circuit: Circuit, *, setting, firing_angle_deg, cycles, start, switch_on_deg, no_firing,
+              samples_per_cycle, tolerance, settle_lamps) -> SimResult:
     pk = pack(circuit, setting=setting, firing_angle_deg=firing_angle_deg, no_firing=no_firing,
               tolerance=tolerance)
     period = circuit.supply.period_s

@@ -23,7 +23,7 @@ from textual.message import Message
 from textual.screen import Screen
 from textual.widgets import Footer, Header, TabbedContent, TabPane
 
-from compat.report import Report, Status
+from compat.report import Report, Status, terminal_safe
 from loads.errors import InputError
 from loads.load import LoadGroup
 from tui.modals import (CautionsScreen, CheckDetailsScreen, ChoiceScreen, HelpScreen, PathPrompt, PickerScreen,
@@ -120,7 +120,7 @@ class CircuitScreen(Screen):
         return self._cautions
 
     def _update_title(self) -> None:
-        self.title = f"dimfit · {'* ' if self.dirty else ''}{self.circuit.name}"
+        self.title = f"dimfit · {'* ' if self.dirty else ''}{terminal_safe(self.circuit.name)}"
         self.sub_title = (self.path.name if self.path else "no file") + (" · unsaved" if self.dirty else "")
 
     # ------------------------------------------------------------ circuit changes
@@ -511,7 +511,9 @@ class CircuitScreen(Screen):
                 text = self.services.render_markdown(report, circuit)
                 write_text_atomic(path, text)
             except Exception as error:  # noqa: BLE001 - reported, never a crash
-                self.notify(str(error), title="Not exported", severity="error")
+                # name the file asked for, never the temporary file beside it
+                reason = error.strerror if isinstance(error, OSError) and error.strerror else str(error)
+                self.notify(f"{path}: {reason}", title="Not exported", severity="error")
                 return
             self.notify(f"Report written to {path}")
         default = (self.path.with_suffix(".md").name if self.path else _file_name(self.circuit.name) + ".md")

@@ -30,7 +30,7 @@ def open_app(path: str | None) -> int | None:
 
 def main(argv: Sequence[str] | None = None) -> int:
     """Run ``dimfit``; returns the exit code."""
-    return cli.main(argv, open_app=open_app)
+    return cli.finish(cli.main(argv, open_app=open_app))
 
 
 if __name__ == "__main__":

@@ -11,10 +11,12 @@ from __future__ import annotations
 import dataclasses
 from dataclasses import dataclass
 
+from compat.report import terminal_safe
 from loads.breaker import Breaker, Curve
 from loads.dimmer import Control, Edge, Wiring
 from loads.driver import BleederKind
 from loads.errors import InputError
+from loads.files import check_physical
 from loads.load import LoadGroup, LoadKind
 from loads.supply import PRESETS
 from tui.units import format_number, format_quantity, parse_quantity
@@ -248,7 +250,16 @@ def with_value(obj, spec: FieldSpec, value):
         base = obj if obj is not None else Breaker()
         return dataclasses.replace(base, curve=value)
     try:
-        return _replace_path(obj, spec.path, value)
+        parent = obj
+        *heads, last = spec.path.split(".")
+        for head in heads:
+            parent = getattr(parent, head)
+        new = _replace_path(obj, spec.path, value)        # the model's own rules first
+        if parent is not None:
+            # the file reference's physical range (loads.files.PHYSICAL): what a file
+            # may not hold, the app may not take either
+            check_physical(type(parent), last, value)
+        return new
     except TypeError as error:               # a wrong type reaching the dataclass
         raise InputError(str(error)) from error
 
@@ -269,4 +280,4 @@ def error_text(error: InputError, spec: FieldSpec) -> str:
 
 
 def count_text(group: LoadGroup) -> str:
-    return f"{group.count}× {group.name} {format_number(group.rated_power_w)} W"
+    return f"{group.count}× {terminal_safe(group.name)} {format_number(group.rated_power_w)} W"

@@ -14,7 +14,7 @@ from textual.widgets import Button, DirectoryTree, Input, Label, OptionList, Sta
 from textual.widgets.option_list import Option
 
 from compat.notation import check_figures, sources_text
-from compat.report import CheckResult, Status
+from compat.report import CheckResult, Status, terminal_safe
 from loads.errors import InputError
 from tui.units import format_number
 from tui.widgets import STATUS_WORDS
@@ -107,7 +107,7 @@ class CheckDetailsScreen(ModalScreen[None]):
                 value, limit, margin = check_figures(c)
                 yield Static(f"value {value}   limit {limit}   margin {margin}", classes="details-figures",
                              markup=False)
-                yield Static(c.message, classes="details-message", markup=False)
+                yield Static(terminal_safe(c.message), classes="details-message", markup=False)
                 if c.deciding_input:
                     yield Static(f"Decided by the range given for [b]{c.deciding_input}[/b].")
                 yield Static(f"[b]Remedy:[/b] {c.remedy or 'none needed' if c.status is Status.PASS else c.remedy or 'none known'}",
@@ -290,7 +290,7 @@ def _scalar(value) -> str:
         return "—"
     if hasattr(value, "kind") and hasattr(value, "resistance_ohm"):
         from tui.units import format_quantity
-        return (f"{value.name}: {format_quantity(value.series_capacitance_f or value.parallel_capacitance_f, 'F')}"
+        return (f"{terminal_safe(value.name)}: {format_quantity(value.series_capacitance_f or value.parallel_capacitance_f, 'F')}"
                 f" with {format_quantity(value.resistance_ohm, 'Ω')}")
     return str(value)
 

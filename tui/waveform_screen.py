@@ -18,6 +18,7 @@ from textual.message import Message
 from textual.screen import Screen
 from textual.widgets import Footer, Header, Static
 
+from compat.report import terminal_safe
 from loads.errors import InputError
 from tui.units import format_number, format_quantity
 
@@ -95,7 +96,7 @@ class WaveformScreen(Screen):
         yield Footer()
 
     def on_mount(self) -> None:
-        self.title = f"dimfit · waveforms · {self.circuit.name}"
+        self.title = f"dimfit · waveforms · {terminal_safe(self.circuit.name)}"
         self._show()
         self._run_now()
 

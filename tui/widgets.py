@@ -24,7 +24,7 @@ from textual.widgets import Input, Label, ListItem, ListView, OptionList, Progre
 from textual.widgets.option_list import Option
 
 from compat.notation import check_figures
-from compat.report import CheckResult, Report, Status, Verdict
+from compat.report import CheckResult, Report, Status, Verdict, terminal_safe
 from loads.errors import InputError
 from tui.fields import (SUPPLY_PRESETS, FieldSpec, error_text, field_text, fields_for, get_value, parse_field,
                         with_value)
@@ -52,7 +52,7 @@ def part_label(circuit, key: str) -> str:
             return "Correction  none"
         return f"Correction  {format_quantity(c.series_capacitance_f, 'F')} {format_quantity(c.resistance_ohm, 'Ω')}"
     group = circuit.loads[int(key.split(":")[1])]
-    return f"  {group.count:>3}× {group.name} · {format_number(group.rated_power_w)} W"
+    return f"  {group.count:>3}× {terminal_safe(group.name)} · {format_number(group.rated_power_w)} W"
 
 
 def _clip(text: str, width: int) -> str:

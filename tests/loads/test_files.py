@@ -249,7 +249,7 @@ def test_every_load_kind_round_trips_with_every_field_changed():
             value = getattr(base, key.field)
             if value is None:
                 continue
-            nudged = value * 1.01 if value else 1e-3 / key.per_si
+            nudged = value * 1.01 if value else 1.0 / key.per_si   # 1 file unit: inside every physical range
             try:
                 changed = dataclasses.replace(base, **{key.field: nudged})
             except InputError:

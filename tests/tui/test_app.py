@@ -404,3 +404,19 @@ async def test_moving_between_parts_never_copies_a_field_into_another_part():
         assert after.dimmer.name == before.dimmer.name
         assert after == before
         assert pilot.app.screen.query_one("#f-name", Input).value == before.dimmer.name
+
+
+@sync
+async def test_a_failed_export_names_the_target_file_not_the_temporary_one(tmp_path):
+    # issue 13 item 6: the message named the temporary file beside the target
+    app = make_app()
+    target = tmp_path / "no such folder" / "report.md"
+    async with app.run_test(size=SIZE) as pilot:
+        await settled(pilot)
+        await pilot.press("ctrl+r")
+        await wait_for(pilot, lambda: isinstance(app.screen, PathPrompt))
+        app.screen.query_one("#path-input", Input).value = str(target)
+        await pilot.press("enter")
+        await wait_for(pilot, lambda: any(n.title == "Not exported" for n in app._notifications))
+        note = next(n for n in app._notifications if n.title == "Not exported")
+        assert note.message.startswith(f"{target}: ") and ".tmp" not in note.message
