@@ -292,6 +292,19 @@ def test_every_json_command_parses_on_the_demo_and_test_circuits(command, tmp_pa
 
 
 @pytest.mark.slow
+def test_size_json_parses_on_the_test_circuits(capsys):
+    # our own interface: `size --json` prints one JSON document on every test circuit
+    # (but the one kept for being slow to check, tests/data/robust_slow_check.toml)
+    for path in [p for p in CIRCUITS if p.name != "robust_slow_check.toml"]:
+        code = cli.main(["size", str(path), "--json"])
+        out = capsys.readouterr()
+        assert code == 0, (path, out.err)
+        assert "Traceback" not in out.err
+        doc = json.loads(out.out)
+        assert {"verdict", "counts", "correction", "edge"} <= set(doc), path
+
+
+@pytest.mark.slow
 def test_size_json_parses_when_it_proposes_a_correction_device(tmp_path, capsys):
     # the demo fails at the low end and `size` proposes a load-correction device: its
     # JSON used to end in "not JSON serialisable"
