@@ -3,7 +3,9 @@
 Leading edge (forward phase): a triac fires at the firing angle α after each supply
 zero crossing.  It turns on when gated and stays on only if its main current reaches
 the latching current I_L while the gate is still driven; once latched it turns off when
-the current falls below the holding current I_H (BIB_TEXTBOOK_TRIAC).  The on-state
+the current falls below the holding current I_H (BIB_TEXTBOOK_TRIAC).  Holding is judged
+on the current in the direction it flows: one that the gate carried through zero (a gated
+triac conducts either way) holds the triac on in that direction when the drive ends.  The on-state
 drop is V_T + r_T·i.  A current that sweeps through the holding level faster than the
 commutating dI/dt (a ring of input capacitors with the line inductance) does not turn
 the triac off: it goes on conducting until the current settles in either direction.

@@ -804,7 +804,14 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                             _record_off(Q[T_DIP], S, Q, HC, P, True, y, True)
                             changed = True
                     elif S[CPOL] * y[ISW] < P[IH]:
-                        if abs(Q[DIDT]) > P[DIDTC]:
+                        if -S[CPOL] * y[ISW] >= P[IH]:
+                            # the current went through zero while the gate was driven (a
+                            # gated triac conducts either way) and flows the other way,
+                            # above I_H, when the drive ends: a triac holds on |i|, so it
+                            # goes on conducting in that direction
+                            S[CPOL] = -S[CPOL]
+                            changed = True
+                        elif abs(Q[DIDT]) > P[DIDTC]:
                             # the current sweeps through zero faster than the switch can
                             # recover (commutating dI/dt): it goes on conducting
                             S[LATCHED] = CARRIED

@@ -32,8 +32,10 @@ _TE_CUT = ("trailing edge at conduction below 90°: the drivers' bulk capacitors
 NOT_DEFENSIBLE_TODAY = {
     "fil-rcdiac-3x60w.toml": "the dimmer as written (250 kΩ pot, 100 nF, 32 V diode with 10 V snap-back) fires no "
                              "later than 104°: 15.7 % light at the bottom (a caution); with a 470 kΩ pot it dims to 1 %",
-    "led-le-2wire-phase-6x9w-bleeder.toml": "two-wire phase dimmer: conduction ends near 37° at settings near full "
-                                            "even with the lamps' damper; cause not traced yet",
+    "led-le-2wire-phase-6x9w-bleeder.toml": "two-wire phase dimmer: the input capacitors' ring (8.5 kHz, "
+                                            "ζ ≈ 0.19) outlasts the 100 µs gate pulse; its fifth swing meets zero "
+                                            "at 37.2°, slower than the 10 A/ms commutating limit, and nothing "
+                                            "re-fires the triac",
     "led-rcdiac-4x6w-correction.toml": "lamps without bleeder or damper: the ring after each firing drops the triac "
                                        "out and re-fires it (48 times in 6 half-cycles); the device does not cure it",
     "drv-te-neutral-8x12w.toml": _TE_CUT + "; its 20 A trip acts at low settings",

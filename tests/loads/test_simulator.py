@@ -290,6 +290,41 @@ def test_a_dip_below_holding_shorter_than_the_turn_off_time_does_not_end_conduct
     np.testing.assert_allclose(np.abs(long.dimmer_a[-n // 2:][:k3 - 5]), i[:k3 - 5], atol=1e-3)
 
 
+def _reversing_circuit(holding_a, gate_s):
+    """A 10 kΩ resistor (32 mA at the crest) beside a lightly damped series R–L–C branch
+    (5 kHz, Z0 = 3.2 kΩ, its capacitor empty at the cold start): fired at the crest, the
+    branch rings ±0.1 A, so the switch current swings through zero to about −55 mA at
+    the first trough, 150 µs after the firing.  No commutating-dI/dt carry-on, t_q = 0."""
+    d = Dimmer(control="phase", wiring="with-neutral", rc_diac=None, choke_inductance_h=0.0,
+               holding_current_a=holding_a, latching_current_a=max(holding_a, 0.02), gate_window_s=gate_s,
+               triac_turn_off_time_s=0.0, commutating_di_dt_a_per_s=0.0)
+    return Circuit(supply=Supply(source_resistance_ohm=0.1, source_inductance_h=0.0, wiring_capacitance_f=0.0),
+                   dimmer=d, loads=(Linear(name="r", resistance_ohm=10000.0),
+                                    Linear(name="ring", resistance_ohm=200.0, inductance_h=0.1,
+                                           series_capacitance_f=10e-9)))
+
+
+@pytest.mark.analytic
+def test_a_gate_drive_ending_on_a_reversed_current_leaves_the_triac_conducting():
+    # A triac is bidirectional and holds on the magnitude of its current (textbook triac
+    # behaviour, from memory): a current that the gate carried through zero and that
+    # flows the other way, above I_H, when the drive ends keeps it conducting until |i|
+    # falls below I_H.  The reference is the same circuit with the gate held over the
+    # whole ring (5 ms): the 150 µs drive must end conduction where that run's current,
+    # after the gate's end, first falls below I_H in magnitude, not at the gate's end.
+    ih, n = 0.02, 20000
+    held = simulate(_reversing_circuit(1e-4, 5e-3), firing_angle_deg=90.0, cycles=1, samples_per_cycle=n)
+    deg = (held.t_s - held.t_s[0]) * 50.0 * 360.0
+    gate_end_deg = 90.0 + 150e-6 * 50.0 * 360.0
+    k0 = int(np.argmax(deg >= gate_end_deg))
+    assert held.dimmer_a[k0] < -2 * ih             # the circuit does what it says: reversed at the gate's end
+    k1 = k0 + int(np.argmax(np.abs(held.dimmer_a[k0:]) < ih))
+    assert deg[k1] > gate_end_deg + 0.3            # and it stays above I_H a while
+    short = simulate(_reversing_circuit(ih, 150e-6), firing_angle_deg=90.0, cycles=1, samples_per_cycle=n)
+    # atol 0.03°: the 1 µs sample grid (0.018°) plus the 0.1 µs event tolerance
+    assert short.half_cycles.extinction_angle_deg[0] == pytest.approx(deg[k1], abs=0.03)
+
+
 @pytest.mark.regression
 @pytest.mark.parametrize("case, setting, no_firing, max_events, max_steps", [
     ("et_two_on_rc_diac.toml", 0.0, True, 50, 1000),      # off: fed by the snubber alone
