@@ -853,6 +853,23 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                     c = 1
                 elif vd < -P[VCL]:
                     c = -1
+                if c != 0 and c == -S[CLAMP] and S[SW_ON] == 0:
+                    # the clamp's current has just reached zero with the switch open: a
+                    # located crossing leaves the line current up to the event tolerance
+                    # past it, a few µA that the open paths (the leakage alone: 100 MΩ)
+                    # would carry only at kilovolts of the other polarity.  The clamp
+                    # releases to the open state with that overshoot taken off (the
+                    # consistency step then relaxes the line current); it never hands over
+                    # straight to the other polarity (that chattered at ~35 ns: ~10⁵
+                    # events per cycle with iron-core transformers).  Not while the switch
+                    # ramps its current down: there the hand-over is left as it was (the
+                    # rule made trip ramps chatter)
+                    c = 0
+                    y[IL] = isw
+                    if P[CSN] > 0.0:
+                        y[IL] -= y[VSN] / P[RSN]
+                    if IP[CONTROL] == RC_DIAC:
+                        y[IL] -= y[VT] / P[RT]
             if c != S[CLAMP]:
                 S[CLAMP] = c
                 changed = True
