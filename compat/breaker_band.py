@@ -40,7 +40,7 @@ import math
 from dataclasses import dataclass
 from enum import StrEnum
 
-from loads.breaker import INSTANTANEOUS_BAND, Breaker, Curve
+from loads.breaker import Breaker, Curve
 
 # Engineering choice (see module docstring): the magnetic release responds to the
 # instantaneous current; a sine of k·I_n rms peaks at √2·k·I_n.
@@ -57,19 +57,6 @@ class TripZone(StrEnum):
     RIDES_THROUGH = "rides-through"    # peak in the band, but less I²t than the no-trip current's
     MAY_TRIP = "may-trip"              # half-cycle I²t inside the band: a given breaker may trip
     TRIPS = "trips"                    # half-cycle I²t at or above the must-trip current's
-
-
-@dataclass(frozen=True, slots=True, kw_only=True)
-class BandJudgement:
-    """peak_current_a: the surge peak judged [A]; no_trip_peak_a / must_trip_peak_a:
-    the band edges converted to peak current [A]; zone: where the surge falls;
-    margin: (no_trip − peak)/no_trip [1] (positive: the breaker must hold)."""
-
-    peak_current_a: float
-    no_trip_peak_a: float
-    must_trip_peak_a: float
-    zone: TripZone
-    margin: float
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -99,32 +86,19 @@ def band_peak_a(breaker: Breaker) -> tuple[float, float]:
     return lo * PEAK_PER_RMS, hi * PEAK_PER_RMS
 
 
-def judge_peak(breaker: Breaker, peak_current_a: float) -> BandJudgement:
-    """Where a surge peak [A] falls in the breaker's band, by the peak criterion alone."""
-    lo, hi = band_peak_a(breaker)
-    peak = abs(float(peak_current_a))
-    if peak < lo:
-        zone = TripZone.HOLDS
-    elif peak < hi:
-        zone = TripZone.MAY_TRIP
-    else:
-        zone = TripZone.TRIPS
-    return BandJudgement(peak_current_a=peak, no_trip_peak_a=lo, must_trip_peak_a=hi, zone=zone,
-                         margin=(lo - peak) / lo)
-
-
 def judge_surge(breaker: Breaker, *, peak_current_a: float, i2t_a2s: float, frequency_hz: float) -> SurgeJudgement:
     """Judge a switch-on surge by its peak [A] and its half-cycle ∫i²dt [A²s] at the
     supply frequency [Hz] (see module docstring: peak bound, then the release's
     first-order response to i²)."""
     lo, hi = breaker.band_a()
+    lo_peak, _ = band_peak_a(breaker)
     tau = RELEASE_TIME_CONSTANT_S
     sine_peak_factor = 1.0 + 1.0 / math.sqrt(1.0 + (4.0 * math.pi * frequency_hz * tau) ** 2)
     peak = abs(float(peak_current_a))
     i2t = max(float(i2t_a2s), 0.0)
     width_s = i2t / peak ** 2 if peak > 0 else 0.0
     i_eq = peak * math.sqrt(-math.expm1(-width_s / tau) / sine_peak_factor)
-    if peak < lo * PEAK_PER_RMS:
+    if peak < lo_peak:
         zone = TripZone.HOLDS
     elif i_eq < lo:
         zone = TripZone.RIDES_THROUGH
@@ -134,7 +108,7 @@ def judge_surge(breaker: Breaker, *, peak_current_a: float, i2t_a2s: float, freq
         zone = TripZone.TRIPS
     return SurgeJudgement(peak_current_a=peak, i2t_a2s=i2t, equivalent_rms_a=i_eq,
                           duration_s=width_s, no_trip_a=lo, must_trip_a=hi,
-                          no_trip_peak_a=lo * PEAK_PER_RMS, zone=zone, margin=(lo - i_eq) / lo)
+                          no_trip_peak_a=lo_peak, zone=zone, margin=(lo - i_eq) / lo)
 
 
 def holds(zone: TripZone) -> bool:
@@ -142,18 +116,14 @@ def holds(zone: TripZone) -> bool:
     return zone in (TripZone.HOLDS, TripZone.RIDES_THROUGH)
 
 
-def holding_curve(peak_current_a: float, rated_current_a: float, *, i2t_a2s: float | None = None,
-                  frequency_hz: float = 50.0) -> Curve | None:
-    """The first of B, C, D (most protective first) at ``rated_current_a`` [A] that holds
-    the surge — by its peak alone [A], or with ``i2t_a2s`` [A²s] by both criteria; None
-    if even D is not expected to hold.  A less sensitive curve must still suit the
-    circuit's fault loop impedance (local wiring rules decide)."""
+def holding_curve(peak_current_a: float, rated_current_a: float, *, i2t_a2s: float,
+                  frequency_hz: float) -> Curve | None:
+    """The first of B, C, D (most protective first) at ``rated_current_a`` [A] expected to
+    hold a surge of peak ``peak_current_a`` [A] and half-cycle ``i2t_a2s`` [A²s] at
+    ``frequency_hz`` [Hz] (``judge_surge``); None if even D is not.  A less sensitive
+    curve must still suit the circuit's fault loop impedance (local wiring rules decide)."""
     for curve in (Curve.B, Curve.C, Curve.D):
         b = Breaker(curve=curve, rated_current_a=rated_current_a)
-        if i2t_a2s is None:
-            lo_mult, _ = INSTANTANEOUS_BAND[curve]
-            if abs(peak_current_a) < lo_mult * rated_current_a * PEAK_PER_RMS:
-                return curve
-        elif holds(judge_surge(b, peak_current_a=peak_current_a, i2t_a2s=i2t_a2s, frequency_hz=frequency_hz).zone):
+        if holds(judge_surge(b, peak_current_a=peak_current_a, i2t_a2s=i2t_a2s, frequency_hz=frequency_hz).zone):
             return curve
     return None

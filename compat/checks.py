@@ -589,7 +589,8 @@ def check_inrush(circuit: Circuit, inrush: Sequence[tuple[float, SimResult]]) ->
                 sources=("TRADE",), safety=True, details=details)
 
 
-_ZONE_RANK = {"holds": 0, "rides-through": 1, "may-trip": 2, "trips": 3}
+_ZONE_RANK = {breaker_band.TripZone.HOLDS: 0, breaker_band.TripZone.RIDES_THROUGH: 1,
+              breaker_band.TripZone.MAY_TRIP: 2, breaker_band.TripZone.TRIPS: 3}
 
 
 def worst_surge(circuit: Circuit, inrush: Sequence[tuple[float, SimResult]]):
@@ -601,7 +602,7 @@ def worst_surge(circuit: Circuit, inrush: Sequence[tuple[float, SimResult]]):
         hc = res.half_cycles
         j = breaker_band.judge_surge(circuit.breaker, peak_current_a=float(np.max(hc.peak_line_current_a)),
                                      i2t_a2s=float(np.max(hc.line_i2t_a2s)), frequency_hz=circuit.supply.frequency_hz)
-        key = (_ZONE_RANK[str(j.zone)], j.equivalent_rms_a, j.peak_current_a)
+        key = (_ZONE_RANK[j.zone], j.equivalent_rms_a, j.peak_current_a)
         if best is None or key > best[0]:
             best = (key, angle, j)
     return best[1], best[2]

@@ -23,10 +23,11 @@ from functools import lru_cache
 import numpy as np
 
 from compat import breaker_band, derating
+from compat import checks as ck
 from compat.evaluate import evaluate, gather, judge
 from compat.report import Status, Verdict
-from compat.switch_on import (MAX_COUNT, breaker_max_counts, max_passing, min_passing, switch_on_peak_a,
-                               switch_on_surge, with_count)
+from compat.switch_on import (MAX_COUNT, breaker_max_counts, default_simulator, max_passing, min_passing,
+                               peak_line_current_a, switch_on_runs, with_count)
 from loads.circuit import Circuit
 from loads.dimmer import Control, Dimmer, Edge
 from loads.linear import Linear
@@ -272,11 +273,12 @@ def size(circuit: Circuit, progress=None, simulator=None) -> dict:
     use = derating.rating_use(base.dimmer, base.loads)
     need = base.dimmer.rated_load_w * use.utilisation
     step()
-    peak = switch_on_peak_a(base, simulator)
+    runs = switch_on_runs(base, simulator or default_simulator())     # one set of runs serves both figures
+    peak = peak_line_current_a(runs)
     curve = None
     bcounts = {}
     if base.breaker is not None:
-        _, surge = switch_on_surge(base, simulator)
+        _, surge = ck.worst_surge(base, runs)
         c = breaker_band.holding_curve(surge.peak_current_a, base.breaker.rated_current_a, i2t_a2s=surge.i2t_a2s,
                                        frequency_hz=base.supply.frequency_hz)
         curve = str(c) if c is not None else None

@@ -65,10 +65,14 @@ def switch_on_runs(circuit: Circuit, sim, *, tick=None, cancel=None) -> tuple:
     return tuple(out)
 
 
+def peak_line_current_a(runs) -> float:
+    """Largest line-current peak of switch-on runs ((angle, result), ...) [A]."""
+    return max(float(np.max(r.half_cycles.peak_line_current_a)) for _, r in runs)
+
+
 def switch_on_peak_a(circuit: Circuit, sim=None) -> float:
     """Worst whole-circuit switch-on line-current peak over the switch-on angles [A]."""
-    sim = sim or default_simulator()
-    return max(float(np.max(r.half_cycles.peak_line_current_a)) for _, r in switch_on_runs(circuit, sim))
+    return peak_line_current_a(switch_on_runs(circuit, sim or default_simulator()))
 
 
 def switch_on_surge(circuit: Circuit, sim=None):

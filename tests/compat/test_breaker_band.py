@@ -3,7 +3,7 @@ import math
 
 import pytest
 
-from compat.breaker_band import PEAK_PER_RMS, TripZone, band_peak_a, holding_curve, judge_peak
+from compat.breaker_band import PEAK_PER_RMS, TripZone, band_peak_a, holding_curve, judge_surge
 from loads.breaker import Breaker, Curve
 
 
@@ -18,44 +18,65 @@ def test_band_edges_are_iec60898_multiples(curve, no_trip, must_trip):
     assert hi == pytest.approx(must_trip * 16.0 * math.sqrt(2), rel=1e-12)
 
 
+def _i2t_for(breaker, peak_a, equivalent_rms_a, f_hz=50.0):
+    """The half-cycle I²t that makes a surge of peak ``peak_a`` drive the release as far
+    as ``equivalent_rms_a``: inverting I_eq = I_p·√((1 − e^{−w/τ})/(1 + r)), w = I²t/I_p²."""
+    from compat.breaker_band import RELEASE_TIME_CONSTANT_S as tau
+    factor = 1 + 1 / math.sqrt(1 + (4 * math.pi * f_hz * tau) ** 2)
+    return -peak_a ** 2 * tau * math.log(1 - factor * (equivalent_rms_a / peak_a) ** 2)
+
+
 @pytest.mark.published
 @pytest.mark.parametrize("curve, no_trip, must_trip", [("B", 3, 5), ("C", 5, 10), ("D", 10, 20)])
 def test_zones_at_the_boundaries(curve, no_trip, must_trip):
     # IEC 60898-1: holds below the no-trip multiple, may trip inside the band, trips at
-    # and above the must-trip multiple.  Peaks = √2 × rms multiples (engineering choice).
+    # and above the must-trip multiple (rms test currents); a peak below √2 × the no-trip
+    # current holds whatever its I²t (engineering choice: the peak bound)
     b = Breaker(curve=curve, rated_current_a=10.0)
     k = 10.0 * PEAK_PER_RMS
     eps = 1e-6
-    assert judge_peak(b, no_trip * k * (1 - eps)).zone is TripZone.HOLDS
-    assert judge_peak(b, no_trip * k * (1 + eps)).zone is TripZone.MAY_TRIP
-    assert judge_peak(b, must_trip * k * (1 - eps)).zone is TripZone.MAY_TRIP
-    assert judge_peak(b, must_trip * k).zone is TripZone.TRIPS
-    assert judge_peak(b, -must_trip * k * 2).zone is TripZone.TRIPS      # sign does not matter
+    peak = 3 * must_trip * k            # well above the band, so the I²t decides
+    zone = lambda i_eq: judge_surge(b, peak_current_a=peak, i2t_a2s=_i2t_for(b, peak, i_eq),  # noqa: E731
+                                    frequency_hz=50.0).zone
+    assert zone(no_trip * 10.0 * (1 - eps)) is TripZone.RIDES_THROUGH
+    assert zone(no_trip * 10.0 * (1 + eps)) is TripZone.MAY_TRIP
+    assert zone(must_trip * 10.0 * (1 - eps)) is TripZone.MAY_TRIP
+    assert zone(must_trip * 10.0 * (1 + eps)) is TripZone.TRIPS
+    assert judge_surge(b, peak_current_a=no_trip * k * (1 - eps), i2t_a2s=1e3, frequency_hz=50.0).zone is TripZone.HOLDS
+    assert judge_surge(b, peak_current_a=-peak, i2t_a2s=_i2t_for(b, peak, 2 * must_trip * 10.0),
+                       frequency_hz=50.0).zone is TripZone.TRIPS      # the sign of the peak does not matter
 
 
 @pytest.mark.analytic
 def test_margin_is_fraction_of_no_trip_current():
     b = Breaker(curve="B", rated_current_a=10.0)
-    lo, _ = band_peak_a(b)
-    assert judge_peak(b, lo / 2).margin == pytest.approx(0.5, abs=1e-12)
-    assert judge_peak(b, 1.5 * lo).margin == pytest.approx(-0.5, abs=1e-12)
+    peak = 200.0
+    for i_eq, m in ((15.0, 0.5), (45.0, -0.5)):
+        j = judge_surge(b, peak_current_a=peak, i2t_a2s=_i2t_for(b, peak, i_eq), frequency_hz=50.0)
+        # abs 1e-9: the closed form inverted and evaluated again
+        assert j.margin == pytest.approx(m, abs=1e-9)
 
 
 @pytest.mark.analytic
 def test_other_curve_uses_given_trip_current():
     b = Breaker(curve="other", rated_current_a=10.0, instantaneous_trip_a=150.0)
     k = 150.0 * PEAK_PER_RMS
-    assert judge_peak(b, 0.99 * k).zone is TripZone.HOLDS
-    assert judge_peak(b, 1.0 * k).zone is TripZone.TRIPS
+    assert judge_surge(b, peak_current_a=0.99 * k, i2t_a2s=1e3, frequency_hz=50.0).zone is TripZone.HOLDS
+    peak = 3 * k
+    assert judge_surge(b, peak_current_a=peak, i2t_a2s=_i2t_for(b, peak, 150.0 * (1 + 1e-6)),
+                       frequency_hz=50.0).zone is TripZone.TRIPS
 
 
 @pytest.mark.published
 def test_holding_curve_picks_the_first_that_holds():
-    # B10 holds below 30·√2 A, C10 below 50·√2 A, D10 below 100·√2 A (IEC 60898-1).
-    assert holding_curve(40.0, 10.0) is Curve.B
-    assert holding_curve(50.0, 10.0) is Curve.C
-    assert holding_curve(100.0, 10.0) is Curve.D
-    assert holding_curve(150.0, 10.0) is None
+    # B10 holds below 30·√2 A, C10 below 50·√2 A, D10 below 100·√2 A (IEC 60898-1); the
+    # surges are half-cycles of sine, whose I²t drives the release about as far as their rms
+    def curve(peak):
+        return holding_curve(peak, 10.0, i2t_a2s=(peak / math.sqrt(2)) ** 2 * 0.01, frequency_hz=50.0)
+    assert curve(40.0) is Curve.B
+    assert curve(50.0) is Curve.C
+    assert curve(100.0) is Curve.D
+    assert curve(150.0) is None
 
 
 @pytest.mark.analytic
@@ -81,7 +102,6 @@ def test_release_threshold_is_the_peak_of_the_lagged_square_of_a_sine(f_hz):
 def test_a_half_cycle_of_sine_is_judged_near_its_rms(f_hz):
     # the rectangular-pulse bound applied to one half-cycle of a sine of I rms (peak
     # √2·I, I²t = I²·T/2) gives an equivalent current within a few per cent of I
-    from compat.breaker_band import judge_surge
     b = Breaker(curve="B", rated_current_a=10.0)
     for i_rms in (20.0, 35.0, 60.0):
         j = judge_surge(b, peak_current_a=math.sqrt(2) * i_rms, i2t_a2s=i_rms ** 2 * 0.5 / f_hz, frequency_hz=f_hz)
@@ -93,7 +113,6 @@ def test_short_pulse_is_judged_by_its_i2t():
     # a rectangular pulse of height I and width w ≪ τ drives the lag to I²·w/τ (the
     # limit of I²(1 − e^{−w/τ})); pulses of equal I²t are judged alike whatever their
     # peak (rel 2e-2: 1 − e^{−w/τ} departs from w/τ by w/2τ, about 1 % at 100 µs)
-    from compat.breaker_band import judge_surge
     b = Breaker(curve="B", rated_current_a=10.0)
     a = judge_surge(b, peak_current_a=100.0, i2t_a2s=1.0, frequency_hz=50.0)
     c = judge_surge(b, peak_current_a=300.0, i2t_a2s=1.0, frequency_hz=50.0)

@@ -75,6 +75,18 @@ def test_breaker_count_is_the_boundary_in_the_simulation():
     assert not breaker_band.holds(switch_on_surge(over)[1].zone)
 
 
+def _bypass_that_cures(c):
+    """The device ``smallest_correction`` proposes for a failing circuit, checked to make
+    it pass the full evaluation at a loss under 5 W."""
+    assert evaluate(c).verdict is Verdict.UNSUITABLE
+    corr = smallest_correction(c)
+    assert corr is not None
+    fixed = evaluate(dataclasses.replace(c, correction=corr["device"]))
+    assert not [x.id for x in fixed.checks if x.status is Status.FAIL]
+    assert 0 < corr["loss_w"] < 5.0
+    return corr
+
+
 @pytest.mark.slow
 def test_correction_device_sized_by_search_makes_failing_led_circuit_pass():
     # common practice, no source: a load-correction (R–C bypass) device across LED
@@ -83,12 +95,7 @@ def test_correction_device_sized_by_search_makes_failing_led_circuit_pass():
     # LED retrofits on an rc-diac dimmer), which fails holding and flicker.
     from loads.catalogue import demo_circuit
     c = demo_circuit()
-    assert evaluate(c).verdict is Verdict.UNSUITABLE
-    corr = smallest_correction(c)
-    assert corr is not None
-    fixed = evaluate(dataclasses.replace(c, correction=corr["device"]))
-    assert not [x.id for x in fixed.checks if x.status is Status.FAIL]
-    assert 0 < corr["loss_w"] < 5.0
+    corr = _bypass_that_cures(c)
     # the confirmed part is the one to buy: E6 capacitance, E12 resistance, X2, rated power
     assert corr["device"].series_capacitance_f == corr["capacitance_f"]
     assert any(corr["capacitance_f"] == pytest.approx(b * 10.0 ** e) for b in E6 for e in range(-9, -5))
@@ -108,9 +115,4 @@ def test_bypass_cures_three_small_lamps_on_a_phase_dimmer():
     # search finds one; the full evaluation confirms that nothing fails with it.
     c = Circuit(name="three LEDs", dimmer=Dimmer(control="phase", wiring="with-neutral", rc_diac=None),
                 loads=(ElectronicDriver(name="5 W LED", count=3, rated_power_w=5.0),))
-    assert evaluate(c).verdict is Verdict.UNSUITABLE
-    corr = smallest_correction(c)
-    assert corr is not None
-    fixed = evaluate(dataclasses.replace(c, correction=corr["device"]))
-    assert not [x.id for x in fixed.checks if x.status is Status.FAIL]
-    assert 0 < corr["loss_w"] < 5.0
+    _bypass_that_cures(c)

@@ -298,5 +298,7 @@ def test_an_input_damper_stops_the_ring_dropping_the_triac_out():
     undamped = dataclasses.replace(c, loads=tuple(dataclasses.replace(g, input_damping_ohm=0.0) for g in c.loads))
     ring = sim.simulate(undamped, setting=1.0, cycles=3, start="steady").half_cycles
     damped = sim.simulate(c, setting=1.0, cycles=3, start="steady").half_cycles
+    # the angles are our own reading of these runs (regression bounds): undamped it ends
+    # near 46°, damped near 153°
     assert np.all(ring.early_dropouts[-4:] > 0) and np.all(ring.extinction_angle_deg[-4:-1] < 90.0)
     assert np.all(damped.extinction_angle_deg[-4:-1] > 150.0)     # near the end, where the bleeder takes over
