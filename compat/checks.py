@@ -39,6 +39,11 @@ OFF_VISIBLE_FRACTION = 0.001
 # LRC_ASSIST_DIMMING: dim to 5 % or lower; at full, at least 90 % of the plain-switch light.
 DIM_TARGET_LOW = 0.05
 DIM_TARGET_HIGH = 0.90
+# Engineering choice: lamps whose lowest light is within this factor of the light a
+# filament lamp gives at the bottom of the same dimmer's travel dim as far as the dimmer
+# allows (a filament of another wattage, or a lamp with another light-vs-angle curve,
+# differs by some tens of per cent there).
+DIM_FLOOR_HEADROOM = 1.25
 # Engineering choice: an inductive ratio ωL/R above this makes a linear load "inductive"
 # for edge matching (its current lags by more than ~6°).
 INDUCTIVE_RATIO = 0.1
@@ -944,7 +949,12 @@ def dimming_curve(runs: Sequence[SettingRun], weights) -> list[dict]:
 
 def check_dimming_range(circuit: Circuit, down: Sequence[SettingRun], up: Sequence[SettingRun], weights,
                         bottom: Sequence[SettingRun] = ()) -> CheckResult:
-    """Lowest and highest stable light, dead travel, drop-out and pop-on (LRC_ASSIST_DIMMING)."""
+    """Lowest and highest stable light, dead travel, drop-out and pop-on (LRC_ASSIST_DIMMING).
+
+    The lowest light is judged against 5 %, or against the light a filament lamp gives
+    at the bottom of this dimmer's travel where that is higher (``DIM_FLOOR_HEADROOM``;
+    ``compat.reference_lamp.dimmer_floor_light``): a filament lamp on a dimmer is the
+    trade's reference, so the range the dimmer gives it is the dimmer's own."""
     if not down:
         return _na("dimming-range", "No sweep was simulated.")
     curve_d = dimming_curve(down, weights)
@@ -999,21 +1009,30 @@ def check_dimming_range(circuit: Circuit, down: Sequence[SettingRun], up: Sequen
         parts.append(f"{100 * dead:.0f} % of the knob travel gives no light")
     msg = "The lamps give " + "; ".join(parts) + "."
     lowv = low["light_fraction"]
-    m = _margin(lowv, DIM_TARGET_LOW)
+    # The dimmer's own floor: what a filament lamp gives at the bottom of its travel.
+    # Lamps that dim as far as that are judged to dim as well as this dimmer allows.
+    floor = reference_lamp.dimmer_floor_light(circuit)
+    target = max(DIM_TARGET_LOW, DIM_FLOOR_HEADROOM * floor)
+    details.update({"dimmer_floor_light": floor, "low_target": target})
+    if floor > DIM_TARGET_LOW and lowv <= target:
+        msg = (msg[:-1] + f"; that is as far as this dimmer goes: at the end of its travel a filament lamp "
+               f"gives {100 * floor:.1f} % of its light.")
+    m = _margin(lowv, target)
     problems = []
     if trips is not None:
         msg = trips[0] + ". Elsewhere " + msg[0].lower() + msg[1:]
         problems.append("the protection trips at some settings")
-    if lowv > DIM_TARGET_LOW:
-        problems.append("they do not dim to 5 %")
+    if lowv > target:
+        problems.append(f"they do not dim as far as a filament lamp on this dimmer ({100 * floor:.1f} %)"
+                        if target > DIM_TARGET_LOW else "they do not dim to 5 %")
     if high["light_fraction"] < DIM_TARGET_HIGH:
         problems.append("they do not reach 90 % of full light")
     if problems:
-        return _res("dimming-range", Status.CAUTION, 100 * lowv, 100 * DIM_TARGET_LOW, "%", m,
+        return _res("dimming-range", Status.CAUTION, 100 * lowv, 100 * target, "%", m,
                     msg[:-1] + "; " + " and ".join(problems) + ".",
                     remedy="A dimmer matched to these lamps (edge, minimum load) usually widens the range.",
                     sources=("LRC_ASSIST_DIMMING", "IES_HANDBOOK"), details=details)
-    return _res("dimming-range", Status.PASS, 100 * lowv, 100 * DIM_TARGET_LOW, "%", m, msg,
+    return _res("dimming-range", Status.PASS, 100 * lowv, 100 * target, "%", m, msg,
                 sources=("LRC_ASSIST_DIMMING", "IES_HANDBOOK"), details=details)
 
 

@@ -116,3 +116,25 @@ def filament_svm(circuit: Circuit, light_fraction: float) -> float:
     s = circuit.supply
     lf, svm = filament_svm_curve(float(s.voltage_v), float(s.frequency_hz), float(reference_power_w(circuit)))
     return float(np.interp(light_fraction, lf, svm))
+
+
+# engineering choice: the bottom of a dimmer's travel is judged from this many cycles
+# from the steady start, the last _ANALYSED averaged (a filament settles in a few cycles
+# at the steady start's temperature; the rc-diac timing network in one or two)
+_FLOOR_CYCLES = 8
+
+
+def dimmer_floor_light(circuit: Circuit) -> float:
+    """Light of the reference filament lamp on the circuit's own dimmer and supply at the
+    bottom of the knob's travel (setting 0), as a fraction of its rated light [1].
+
+    This is the dimmer's own floor: a dimmer whose latest firing angle is 104° leaves a
+    filament lamp at about a sixth of its light whatever lamps are fitted, so the lamps'
+    dimming range is judged against it (``compat.checks.check_dimming_range``).  0 when
+    the reference lamp does not light at the bottom of the travel."""
+    ref = Filament(name="reference", count=1, rated_power_w=reference_power_w(circuit),
+                   rated_voltage_v=float(circuit.supply.voltage_v))
+    c = Circuit(name="dimmer floor", supply=circuit.supply, dimmer=circuit.dimmer, loads=(ref,))
+    r = sim.simulate(c, setting=0.0, cycles=_FLOOR_CYCLES, start="steady", samples_per_cycle=_SAMPLES_PER_CYCLE)
+    spc = samples_per_cycle(r)
+    return float(np.mean(np.atleast_2d(r.group_light)[0, -_ANALYSED * spc:]))

@@ -30,8 +30,6 @@ CASES = load_cases()
 _TE_CUT = ("trailing edge at conduction below 90°: the drivers' bulk capacitors charge right up to the "
            "turn-off, the switch cuts 14–23 A in the supply's inductance and the dimmer reaches its clamp")
 NOT_DEFENSIBLE_TODAY = {
-    "fil-rcdiac-3x60w.toml": "the dimmer as written (250 kΩ pot, 100 nF, 32 V diode with 10 V snap-back) fires no "
-                             "later than 104°: 15.7 % light at the bottom (a caution); with a 470 kΩ pot it dims to 1 %",
     "led-le-2wire-phase-6x9w-bleeder.toml": "two-wire phase dimmer: the input capacitors' ring (8.5 kHz, "
                                             "ζ ≈ 0.19) outlasts the 100 µs gate pulse; its fifth swing meets zero "
                                             "at 37.2°, slower than the 10 A/ms commutating limit, and nothing "
