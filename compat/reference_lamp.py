@@ -132,9 +132,15 @@ def dimmer_floor_light(circuit: Circuit) -> float:
     filament lamp at about a sixth of its light whatever lamps are fitted, so the lamps'
     dimming range is judged against it (``compat.checks.check_dimming_range``).  0 when
     the reference lamp does not light at the bottom of the travel."""
-    ref = Filament(name="reference", count=1, rated_power_w=reference_power_w(circuit),
-                   rated_voltage_v=float(circuit.supply.voltage_v))
-    c = Circuit(name="dimmer floor", supply=circuit.supply, dimmer=circuit.dimmer, loads=(ref,))
+    return _floor_light(circuit.supply, circuit.dimmer, float(reference_power_w(circuit)))
+
+
+@lru_cache(maxsize=64)
+def _floor_light(supply: Supply, dimmer: Dimmer, power_w: float) -> float:
+    """``dimmer_floor_light`` for one supply, dimmer and reference lamp (kept: every
+    check of a sizing search asks it again for the same dimmer)."""
+    ref = Filament(name="reference", count=1, rated_power_w=power_w, rated_voltage_v=float(supply.voltage_v))
+    c = Circuit(name="dimmer floor", supply=supply, dimmer=dimmer, loads=(ref,))
     r = sim.simulate(c, setting=0.0, cycles=_FLOOR_CYCLES, start="steady", samples_per_cycle=_SAMPLES_PER_CYCLE)
     spc = samples_per_cycle(r)
     return float(np.mean(np.atleast_2d(r.group_light)[0, -_ANALYSED * spc:]))

@@ -384,3 +384,19 @@ def test_trailing_edge_clamp_release_costs_no_event_storm(setting, max_events, m
     assert counters[1] < 1000000                           # no 1 ns bail-outs
     # the clamp does act (it takes over and releases in each half-cycle: ≥ 2 events)
     assert 2 <= events <= max_events and steps <= max_steps, (steps, events)
+
+
+@pytest.mark.analytic
+def test_a_converter_stop_voltage_at_its_start_voltage_gets_a_lock_out_gap():
+    # engineering choice (loads.driver.UVLO_MIN_GAP_FRACTION): a converter's under-voltage
+    # lock-out always has hysteresis (common practice, from memory); a file that gives the
+    # stop voltage equal to the start is taken as 5 % below it, so the model's converter
+    # cannot stop and restart at every solver step (a random legal circuit did 20,000
+    # times per cycle).  A stop voltage well below the start is kept as given.
+    from loads.driver import ElectronicDriver
+    same = ElectronicDriver(name="d", count=1, rated_power_w=10.0, start_voltage_v=60.0, stop_voltage_v=60.0)
+    assert same.stop_v == pytest.approx(57.0, rel=1e-12)     # exact arithmetic: 0.95 × 60 V
+    low = ElectronicDriver(name="d", count=1, rated_power_w=10.0, start_voltage_v=60.0, stop_voltage_v=30.0)
+    assert low.stop_v == 30.0
+    default = ElectronicDriver(name="d", count=1, rated_power_w=10.0, start_voltage_v=60.0)
+    assert default.stop_v == pytest.approx(48.0, rel=1e-12)  # the default 0.8 × start
