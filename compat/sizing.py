@@ -6,7 +6,7 @@
   (rating, peaks, inrush, breaker, harmonics, dissipation) are searched separately;
 * load-correction device: the smallest series R–C (a ``Linear`` with
   ``series_capacitance_f`` in ``Circuit.correction``) that makes a failing circuit
-  pass, found by bisection on the capacitance in log scale, with its loss;
+  pass, found by a scan of preferred (E3, then E6) capacitances, with its loss;
 * the dimmer edge that would pass, and the derated rating the load needs;
 * the breaker curve whose instantaneous band holds the switch-on surge, and how many
   units of each group a given breaker holds.
@@ -42,7 +42,6 @@ HIGH_SIDE = ("rating", "repetitive-peak", "inrush", "breaker", "harmonics", "dis
 # capacitance is searched between 10 nF and 10 µF.
 CORRECTION_SPIKE_A = 1.0
 CORRECTION_C_RANGE_F = (10e-9, 10e-6)
-CORRECTION_REL_TOL = 0.05                 # engineering choice: 5 % on the capacitance
 # Purchasable parts: IEC 60063 preferred numbers (from memory).  Capacitors in the E6
 # series, whose tolerance class is ±20 %; resistors in E12 values, sold at ±5 % or
 # better (common practice, no source).
@@ -150,10 +149,10 @@ _ALL = set(LOW_SIDE) | set(HIGH_SIDE) | {"edge-match", "dc-offset", "turn-off-su
 
 
 def smallest_correction(circuit: Circuit, simulator=None) -> dict | None:
-    """The smallest correction capacitance (a coarse scan, then log bisection, for each
-    series resistor of ``correction_resistances_ohm``) that clears every failure a
-    bypass can cure (``LOW_SIDE``) and adds none, rounded up to E6; its
-    loss from a steady simulation at full.  None if no device in range passes."""
+    """The smallest correction capacitance (an E3 scan upward, then the E6 value below
+    the first pass, for each series resistor of ``correction_resistances_ohm``) that
+    clears every failure a bypass can cure (``LOW_SIDE``) and adds none; its loss from
+    a steady simulation at full.  None if no device in range passes."""
     # a bypass can cure the low-side failures (too little load); it cannot cure an
     # overload, a surge or a wrong edge, so those may stay failing as long as it adds no
     # failure of its own
@@ -175,31 +174,31 @@ def smallest_correction(circuit: Circuit, simulator=None) -> dict | None:
                 return False
 
         # passing need not be monotonic in C (a large C brings its own spikes), so scan
-        # a coarse grid upward for the first pass, then bisect below it
+        # a coarse grid upward for the first pass, then try the E6 value below it
         grid = [c for c in CORRECTION_C_GRID_F if CORRECTION_C_RANGE_F[0] <= c <= CORRECTION_C_RANGE_F[1]]
-        # a first pass above a grid value at or over the best found so far leaves this
-        # resistor an answer above it (the answer lies above the last failing value),
-        # so the scan stops there: the same answer, fewer probes
-        first = None
-        for k, c in enumerate(grid):
-            if best is not None and k > 0 and grid[k - 1] >= best[0]:
-                break
-            if ok(c):
-                first = k
-                break
-        if first is None:
-            continue
-        hi = grid[first]
-        lo = grid[first - 1] if first > 0 else CORRECTION_C_RANGE_F[0] / 2
-        while hi / lo > 1 + CORRECTION_REL_TOL:
-            if best is not None and lo >= best[0]:
-                break                       # every answer left here is above the best
-            mid = math.sqrt(lo * hi)
-            if ok(mid):
-                hi = mid
-            else:
-                lo = mid
-        c = _round_up_preferred(hi)
+        if best is None:
+            # the first resistor: the lowest grid value that passes, scanning upward
+            first = next((k for k, c in enumerate(grid) if ok(c)), None)
+            if first is None:
+                continue
+            top, failed = grid[first], (grid[first - 1] if first > 0 else None)
+        else:
+            # the next resistors only matter below the best so far: scan down from just
+            # below it while it passes (the failures that make passing non-monotonic
+            # come with large capacitances, above it)
+            top, failed = best[0], None
+            for c in reversed([c for c in grid if c < best[0]]):
+                if not ok(c):
+                    failed = c
+                    break
+                top = c
+        # the answer is bought as an E6 part, so the search needs no finer step than
+        # E6: the grid is E3, and between two E3 values lies one E6 value to try
+        c = top
+        if failed is not None:
+            between = _round_up_preferred(failed * 1.01)
+            if between < top and ok(between):
+                c = between
         if best is None or c < best[0]:
             best = (c, r)
     if best is None:
