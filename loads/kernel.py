@@ -116,11 +116,15 @@ CONTROL = 1   # PHASE | RC_DIAC
 NOFIRE = 2    # 1: the switch never fires (lamp-out state)
 NG = 3        # number of load groups [1]
 NY = 4        # number of unknowns [1]
-GDRIVE = 5    # SINGLE_PULSE | UNTIL_LATCHED: a phase controller's gate drive (loads.dimmer)
+GDRIVE = 5    # SINGLE_PULSE | UNTIL_LATCHED | RETRIGGER: a phase controller's gate drive (loads.dimmer)
 N_IP = 6
 LEADING, TRAILING = 0, 1
 PHASE, RC_DIAC = 0, 1
-SINGLE_PULSE, UNTIL_LATCHED = 0, 1
+SINGLE_PULSE, UNTIL_LATCHED, RETRIGGER = 0, 1, 2
+# Engineering choice: a retriggering phase controller sees its switch as off once the
+# voltage across it, in the half-cycle's polarity, exceeds this: well above the
+# triac's on-state drop (1–1.5 V), far below the supply's voltage where a re-fire matters.
+RETRIGGER_SENSE_V = 10.0
 
 # --- discrete state S[...] (ints; one mode per group follows, from N_S) ------------------
 SW_ON = 0     # switch conducting: 0 off, 1 on, RAMPING
@@ -398,7 +402,7 @@ def guards(y, P, IP, S, gk, gxo, gpo, gnp, GP, g):
             if S[GATE] != 0 and S[LATCHED] == 0:
                 # a drive held until the switch latches waits for this half-cycle's current
                 # (CPOL holds its polarity), not the previous one's still flowing
-                g[k] = (S[CPOL] * y[ISW] if IP[GDRIVE] == UNTIL_LATCHED else abs(y[ISW])) - P[ILATCH]
+                g[k] = (S[CPOL] * y[ISW] if IP[GDRIVE] != SINGLE_PULSE else abs(y[ISW])) - P[ILATCH]
                 k += 1
             if S[GATE] == 0 and S[LATCHED] != 0:
                 g[k] = ic - P[IH]
@@ -410,6 +414,11 @@ def guards(y, P, IP, S, gk, gxo, gpo, gnp, GP, g):
             if S[LATCHED] == CARRIED:
                 g[k] = -ic - P[IH]
                 k += 1
+        elif IP[CONTROL] == PHASE and IP[GDRIVE] == RETRIGGER and S[FIRE_HC] == S[HCIDX] and IP[NOFIRE] == 0:
+            # off after firing in this half-cycle: a retriggering controller watches the
+            # voltage across the switch (its polarity is judged in update_modes)
+            g[k] = abs(y[VD]) - RETRIGGER_SENSE_V
+            k += 1
         if IP[CONTROL] == RC_DIAC:
             if S[DIAC_ON] == 0:
                 g[k] = y[VT] - P[VBOP]
@@ -732,6 +741,9 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
     for _ in range(6):
         changed = False
         if IP[EDGE] == LEADING:
+            if _retrigger_due(t, y, P, IP, S, Q):
+                _refire_phase(t, y, P, S, Q, HC)
+                changed = True
             if IP[CONTROL] == RC_DIAC:
                 if S[DIAC_ON] == 0:
                     if y[VT] >= P[VBOP]:
@@ -758,11 +770,11 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                             S[LATCHED] = 1     # gated again during a dip: it conducts on
                         _record_firing(t, S, Q, HC, P)
             if S[SW_ON] != 0:
-                i_latch = S[CPOL] * y[ISW] if IP[GDRIVE] == UNTIL_LATCHED else abs(y[ISW])
+                i_latch = S[CPOL] * y[ISW] if IP[GDRIVE] != SINGLE_PULSE else abs(y[ISW])
                 if S[GATE] != 0 and S[LATCHED] == 0 and i_latch >= P[ILATCH]:
                     S[LATCHED] = 1
                     S[CPOL] = 1 if y[ISW] > 0.0 else -1
-                    if IP[GDRIVE] == UNTIL_LATCHED and Q[GATE_END] == np.inf:
+                    if IP[GDRIVE] != SINGLE_PULSE and Q[GATE_END] == np.inf:
                         S[GATE] = 0       # past its window, the drive stops once the switch latches
                     changed = True
                 if S[GATE] == 0:
@@ -896,7 +908,7 @@ def _half_cycle_polarity(Q, P):
 def _fire_phase(t, y, P, IP, S, Q, HC):
     """Phase control: the gate drive starts at t."""
     Q[T_FIRE] = np.inf
-    if IP[GDRIVE] == UNTIL_LATCHED:
+    if IP[GDRIVE] != SINGLE_PULSE:
         pol = _half_cycle_polarity(Q, P)
         if S[SW_ON] != 0:
             # the previous half-cycle's current still flows: the gate takes it over, so
@@ -909,6 +921,35 @@ def _fire_phase(t, y, P, IP, S, Q, HC):
     else:
         S[LATCHED] = 0 if abs(y[ISW]) < P[ILATCH] else 1
         S[CPOL] = 1 if y[ISW] > 0.0 else -1
+    S[SW_ON] = 1
+    S[GATE] = 1
+    Q[GATE_END] = t + P[GATEW]
+    _record_firing(t, S, Q, HC, P)
+
+
+@numba.njit(cache=True, _nrt=False)
+def _retrigger_due(t, y, P, IP, S, Q):
+    """A retriggering phase controller fires again: its switch, fired in this
+    half-cycle, is off with the supply's own polarity across it above the sense level,
+    early enough that the drop-out counts as early (a drop-out near the half-cycle's end
+    is the natural one, and the controller's pulses stop before the zero crossing).  A
+    reversed voltage (lamp capacitors held above a falling supply) does not re-fire it."""
+    if IP[CONTROL] != PHASE or IP[GDRIVE] != RETRIGGER or IP[NOFIRE] != 0 or S[SW_ON] != 0:
+        return False
+    if S[FIRE_HC] != S[HCIDX] or Q[T_FIRE] != np.inf:
+        return False
+    if _half_cycle_polarity(Q, P) * y[VD] < RETRIGGER_SENSE_V:
+        return False
+    return _angle_deg(t, Q[HC_START], P) < 180.0 - P[EARLY]
+
+
+@numba.njit(cache=True, _nrt=False)
+def _refire_phase(t, y, P, S, Q, HC):
+    """The retriggering controller's new gate drive: as at the firing angle, for the
+    gate window and on until the switch latches with this half-cycle's current."""
+    pol = _half_cycle_polarity(Q, P)
+    S[CPOL] = pol
+    S[LATCHED] = 1 if pol * y[ISW] >= P[ILATCH] else 0
     S[SW_ON] = 1
     S[GATE] = 1
     Q[GATE_END] = t + P[GATEW]
@@ -1347,7 +1388,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         # then the modes and a consistent state after any event
         timed = False
         if IP[CONTROL] == PHASE and IP[EDGE] == LEADING and S[GATE] != 0 and abs(t - Q[GATE_END]) < 1e-12:
-            if IP[GDRIVE] == UNTIL_LATCHED and S[LATCHED] == 0:
+            if IP[GDRIVE] != SINGLE_PULSE and S[LATCHED] == 0:
                 Q[GATE_END] = np.inf     # driven on until it latches or the half-cycle ends
             else:
                 S[GATE] = 0
@@ -1364,7 +1405,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         if S[LATCHED] == DIPPING and abs(t - Q[T_DIP_END]) < 1e-12:
             timed = True           # the dip has lasted the turn-off time (see update_modes)
         if abs(t - t_hb) < 1e-12:
-            if IP[GDRIVE] == UNTIL_LATCHED and S[GATE] != 0 and Q[GATE_END] == np.inf:
+            if IP[GDRIVE] != SINGLE_PULSE and S[GATE] != 0 and Q[GATE_END] == np.inf:
                 # a drive held past its window ends with its half-cycle; a switch that has
                 # not latched by then stops conducting
                 S[GATE] = 0
