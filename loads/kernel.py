@@ -741,7 +741,7 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
     for _ in range(6):
         changed = False
         if IP[EDGE] == LEADING:
-            if _retrigger_due(t, y, P, IP, S, Q):
+            if _retrigger_due(t, y, P, IP, S, Q, HC):
                 _refire_phase(t, y, P, S, Q, HC)
                 changed = True
             if IP[CONTROL] == RC_DIAC:
@@ -928,18 +928,24 @@ def _fire_phase(t, y, P, IP, S, Q, HC):
 
 
 @numba.njit(cache=True, _nrt=False)
-def _retrigger_due(t, y, P, IP, S, Q):
+def _retrigger_due(t, y, P, IP, S, Q, HC):
     """A retriggering phase controller fires again: its switch, fired in this
-    half-cycle, is off with the supply's own polarity across it above the sense level,
-    early enough that the drop-out counts as early (a drop-out near the half-cycle's end
-    is the natural one, and the controller's pulses stop before the zero crossing).  A
-    reversed voltage (lamp capacitors held above a falling supply) does not re-fire it."""
+    half-cycle, dropped out early (more than the early-drop-out margin before the
+    half-cycle's end: a drop-out after that is the natural one, where the controller's
+    pulses have stopped) and is off with the supply's own polarity across it above the
+    sense level.  A reversed voltage (lamp capacitors held above a falling supply) does
+    not re-fire it."""
     if IP[CONTROL] != PHASE or IP[GDRIVE] != RETRIGGER or IP[NOFIRE] != 0 or S[SW_ON] != 0:
         return False
-    if S[FIRE_HC] != S[HCIDX] or Q[T_FIRE] != np.inf:
+    h = S[HCIDX]
+    if S[FIRE_HC] != h or Q[T_FIRE] != np.inf:
         return False
     if _half_cycle_polarity(Q, P) * y[VD] < RETRIGGER_SENSE_V:
         return False
+    if _angle_deg(t, Q[HC_START], P) >= 180.0:
+        return False
+    if h < HC.shape[0]:
+        return HC[h, H_EXT] < 180.0 - P[EARLY]
     return _angle_deg(t, Q[HC_START], P) < 180.0 - P[EARLY]
 
 
