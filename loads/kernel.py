@@ -125,6 +125,10 @@ SINGLE_PULSE, UNTIL_LATCHED, RETRIGGER = 0, 1, 2
 # voltage across it, in the half-cycle's polarity, exceeds this: well above the
 # triac's on-state drop (1–1.5 V), far below the supply's voltage where a re-fire matters.
 RETRIGGER_SENSE_V = 10.0
+# Engineering choice (from memory: a controller's pulse train is made of pulses of some
+# tens of µs to ~100 µs): a re-fire drives the gate for one such pulse, never longer than
+# the dimmer's own gate window (which may be a drive held far longer at the firing angle).
+RETRIGGER_PULSE_S = 100e-6
 
 # --- discrete state S[...] (ints; one mode per group follows, from N_S) ------------------
 SW_ON = 0     # switch conducting: 0 off, 1 on, RAMPING
@@ -137,7 +141,8 @@ HCIDX = 6     # index of the current half-cycle record [1]
 FIRE_HC = 7   # half-cycle record of the conduction under way (−1: none) [1]
 TRIPPED = 8   # trailing-edge protection has tripped: 0 | 1
 CPOL = 9      # polarity of the conduction under way: +1 | −1
-N_S = 10
+REFIRED = 10  # the gate drive under way is a retriggering controller's re-fire: 0 | 1
+N_S = 11
 RAMPING = 2   # S[SW_ON] while a trailing-edge switch ramps its current down
 CARRIED = 2   # S[LATCHED]: conducting on through a failed commutation
 DIPPING = 3   # S[LATCHED]: below I_H for less than the turn-off time, still conducting
@@ -780,7 +785,7 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                 if S[GATE] == 0:
                     if S[LATCHED] == 0:
                         h = S[HCIDX]
-                        if h < HC.shape[0]:
+                        if h < HC.shape[0] and S[REFIRED] == 0:
                             HC[h, H_FAILED] += 1.0
                         _chop_loads(y, y[ISW], IP, gk, gxo, gpo, gnp, gn, GP)
                         _record_off(t, S, Q, HC, P, True, y, False)
@@ -923,6 +928,7 @@ def _fire_phase(t, y, P, IP, S, Q, HC):
         S[CPOL] = 1 if y[ISW] > 0.0 else -1
     S[SW_ON] = 1
     S[GATE] = 1
+    S[REFIRED] = 0
     Q[GATE_END] = t + P[GATEW]
     _record_firing(t, S, Q, HC, P)
 
@@ -951,14 +957,19 @@ def _retrigger_due(t, y, P, IP, S, Q, HC):
 
 @numba.njit(cache=True, _nrt=False)
 def _refire_phase(t, y, P, S, Q, HC):
-    """The retriggering controller's new gate drive: as at the firing angle, for the
-    gate window and on until the switch latches with this half-cycle's current."""
+    """The retriggering controller's new gate pulse: one pulse of its train (the gate
+    window at most), in which the
+    switch latches if this half-cycle's current reaches the latching current; if it
+    does not, the switch stops conducting at the window's end (the controller pulses
+    again while it sees the supply's voltage across the switch).  A re-fire that finds
+    no current to latch is not a failed firing: the controller only looked."""
     pol = _half_cycle_polarity(Q, P)
     S[CPOL] = pol
     S[LATCHED] = 1 if pol * y[ISW] >= P[ILATCH] else 0
     S[SW_ON] = 1
     S[GATE] = 1
-    Q[GATE_END] = t + P[GATEW]
+    S[REFIRED] = 1
+    Q[GATE_END] = t + min(P[GATEW], RETRIGGER_PULSE_S)
     _record_firing(t, S, Q, HC, P)
 
 
@@ -1394,7 +1405,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         # then the modes and a consistent state after any event
         timed = False
         if IP[CONTROL] == PHASE and IP[EDGE] == LEADING and S[GATE] != 0 and abs(t - Q[GATE_END]) < 1e-12:
-            if IP[GDRIVE] != SINGLE_PULSE and S[LATCHED] == 0:
+            if IP[GDRIVE] != SINGLE_PULSE and S[LATCHED] == 0 and S[REFIRED] == 0:
                 Q[GATE_END] = np.inf     # driven on until it latches or the half-cycle ends
             else:
                 S[GATE] = 0

@@ -122,3 +122,34 @@ def test_retrigger_is_the_phase_controllers_default_and_round_trips():
         assert f'gate_drive = "{g}"\n' in text
         back, _ = files.parse_profile(text)
         assert back == d and back.gate_drive is GateDrive(g)
+
+
+@pytest.mark.regression
+def test_a_re_fire_is_one_pulse_and_does_not_carry_the_triac_through_the_crest():
+    """Found on the corpus run (our own output, pinned as a regression): six 12 W
+    capacitor-input drivers without bleeder (600 nF of input capacitance) on a
+    with-neutral dimmer whose own gate window is 1 ms.  Walking the knob down from full,
+    a re-fire at the crest that was given the whole 1 ms window gated the triac through
+    the current's zero, and it then held on the input capacitors' reverse current
+    (60 mA against a 15 mA holding current) into the next half-cycle: conduction to
+    250° and a 'failed latch' at setting 0.65.  A re-fire is one pulse of the
+    controller's train (at most RETRIGGER_PULSE_S): every half-cycle then ends its
+    conduction inside its own half-cycle (plus the 10° early-drop-out margin) and no
+    firing fails to latch, as with the single held drive."""
+    from loads import kernel as K
+
+    assert K.RETRIGGER_PULSE_S <= 100e-6
+    drivers = ElectronicDriver(name="drv", count=6, rated_power_w=12.0, input_capacitance_f=100e-9,
+                               series_resistance_ohm=4.7, bulk_capacitance_f=22e-6, start_voltage_v=80.0,
+                               min_light_fraction=0.02)
+    d = _two_wire_phase(wiring="with-neutral", self_supply_a=0.0, gate_window_s=1e-3, rated_load_w=400.0,
+                        min_load_w=10.0, gate_trigger_current_a=0.010)
+    c = Circuit(supply=Supply(), dimmer=d, loads=(drivers,))
+    state: object = "steady"
+    for s in (1.0, 0.95, 0.9, 0.85, 0.8, 0.75, 0.7, 0.65, 0.6, 0.55):
+        res = simulate(c, setting=s, cycles=6, start=state, samples_per_cycle=200)
+        state = res.final_state
+        hc = res.half_cycles
+        ext = hc.extinction_angle_deg[np.isfinite(hc.extinction_angle_deg)]
+        assert np.all(ext < 180.0 + EARLY_DROPOUT_DEG), (s, ext)
+        assert int(np.sum(hc.failed_latches)) == 0, s
