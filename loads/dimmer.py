@@ -24,7 +24,8 @@ Control:
   window ends, and a single pulse would then leave that polarity unfired).  With
   ``"retrigger"`` (the default) it does that and, when the switch drops out before the
   half-cycle ends (more than the early-drop-out margin before it) and the supply's own
-  polarity appears across it above a few volts, it drives the gate again the same way
+  polarity appears across it above 10 V, it gives the gate another pulse (one pulse of
+  a train, at most 100 µs; loads.kernel ``RETRIGGER_PULSE_S``)
   (common practice, from memory: phase-control ICs for triacs watch the voltage across
   the triac and repeat the gate pulse while it is seen inside the conduction interval,
   and microcontroller dimmers send a train of pulses; so a triac that the ring of lamp
