@@ -814,7 +814,7 @@ def fires_symmetrically(dimmer: Dimmer) -> bool:
     if dimmer.edge is Edge.TRAILING:
         return True
     if dimmer.control is Control.PHASE:
-        return dimmer.gate_drive is GateDrive.UNTIL_LATCHED
+        return dimmer.gate_drive is not GateDrive.SINGLE_PULSE
     return dimmer.rc_diac is None or dimmer.rc_diac.asymmetry_v == 0.0
 
 

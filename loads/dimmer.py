@@ -17,11 +17,20 @@ A series choke L_c limits di/dt; a snubber R–C sits across the dimmer.
 Control:
 
 * ``phase`` – an ideal controller: the gate is driven from α for ``gate_window_s``, and
-  with ``gate_drive = "until-latched"`` (the default) on after that until the switch has
+  with ``gate_drive = "until-latched"`` on after that until the switch has
   latched with the current of this half-cycle's polarity, or the half-cycle ends (a
   pulse train or a gate held on, as dimmers made for inductive loads have: an iron-core
   transformer's lagging current from the previous half-cycle may still flow when the
   window ends, and a single pulse would then leave that polarity unfired).  With
+  ``"retrigger"`` (the default) it does that and, when the switch drops out before the
+  half-cycle ends (more than the early-drop-out margin before it) and the supply's own
+  polarity appears across it above 10 V, it gives the gate another pulse (one pulse of
+  a train, at most 100 µs; loads.kernel ``RETRIGGER_PULSE_S``)
+  (common practice, from memory: phase-control ICs for triacs watch the voltage across
+  the triac and repeat the gate pulse while it is seen inside the conduction interval,
+  and microcontroller dimmers send a train of pulses; so a triac that the ring of lamp
+  input capacitors turns off a few degrees after firing is fired again).  A reversed
+  voltage — lamp capacitors held above a falling supply — does not re-fire it.  With
   ``"single-pulse"`` the drive ends with the window whatever the switch did.
   A setting s ∈ [0, 1] maps linearly to α = α_max − s·(α_max − α_min).
   The controller times its firing from the supply's zero crossings, so after the supply
@@ -80,6 +89,7 @@ class GateDrive(StrEnum):
 
     UNTIL_LATCHED = "until-latched"
     SINGLE_PULSE = "single-pulse"
+    RETRIGGER = "retrigger"
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -136,8 +146,9 @@ class Dimmer:
     latching_current_a: float = 0.050         # TEXTBOOK_TRIAC: latching 1.5–3× holding (from memory)
     gate_trigger_current_a: float = 0.010     # common practice, no source (sensitive-gate triacs 5–35 mA)
     gate_window_s: float = 100e-6             # engineering choice: a short pulse train from a phase controller
-    gate_drive: GateDrive = GateDrive.UNTIL_LATCHED   # common practice, no source: controllers for inductive
-                                              # loads keep driving the gate until the switch latches
+    gate_drive: GateDrive = GateDrive.RETRIGGER   # common practice, from memory: electronic phase controllers
+                                              # drive the gate until the switch latches and fire it again
+                                              # when it drops out inside the conduction interval
     on_state_voltage_v: float = 1.0           # common practice, no source (triac V_T ≈ 1–1.5 V)
     on_state_resistance_ohm: float = 0.02     # common practice, no source (triac slope resistance tens of mΩ)
     surge_peak_a: float = 80.0                # common practice, no source (a 4–8 A triac: 60–100 A for one half-cycle)

@@ -116,11 +116,19 @@ CONTROL = 1   # PHASE | RC_DIAC
 NOFIRE = 2    # 1: the switch never fires (lamp-out state)
 NG = 3        # number of load groups [1]
 NY = 4        # number of unknowns [1]
-GDRIVE = 5    # SINGLE_PULSE | UNTIL_LATCHED: a phase controller's gate drive (loads.dimmer)
+GDRIVE = 5    # SINGLE_PULSE | UNTIL_LATCHED | RETRIGGER: a phase controller's gate drive (loads.dimmer)
 N_IP = 6
 LEADING, TRAILING = 0, 1
 PHASE, RC_DIAC = 0, 1
-SINGLE_PULSE, UNTIL_LATCHED = 0, 1
+SINGLE_PULSE, UNTIL_LATCHED, RETRIGGER = 0, 1, 2
+# Engineering choice: a retriggering phase controller sees its switch as off once the
+# voltage across it, in the half-cycle's polarity, exceeds this: well above the
+# triac's on-state drop (1–1.5 V), far below the supply's voltage where a re-fire matters.
+RETRIGGER_SENSE_V = 10.0
+# Engineering choice (from memory: a controller's pulse train is made of pulses of some
+# tens of µs to ~100 µs): a re-fire drives the gate for one such pulse, never longer than
+# the dimmer's own gate window (which may be a drive held far longer at the firing angle).
+RETRIGGER_PULSE_S = 100e-6
 
 # --- discrete state S[...] (ints; one mode per group follows, from N_S) ------------------
 SW_ON = 0     # switch conducting: 0 off, 1 on, RAMPING
@@ -133,7 +141,8 @@ HCIDX = 6     # index of the current half-cycle record [1]
 FIRE_HC = 7   # half-cycle record of the conduction under way (−1: none) [1]
 TRIPPED = 8   # trailing-edge protection has tripped: 0 | 1
 CPOL = 9      # polarity of the conduction under way: +1 | −1
-N_S = 10
+REFIRED = 10  # the gate drive under way is a retriggering controller's re-fire: 0 | 1
+N_S = 11
 RAMPING = 2   # S[SW_ON] while a trailing-edge switch ramps its current down
 CARRIED = 2   # S[LATCHED]: conducting on through a failed commutation
 DIPPING = 3   # S[LATCHED]: below I_H for less than the turn-off time, still conducting
@@ -398,7 +407,7 @@ def guards(y, P, IP, S, gk, gxo, gpo, gnp, GP, g):
             if S[GATE] != 0 and S[LATCHED] == 0:
                 # a drive held until the switch latches waits for this half-cycle's current
                 # (CPOL holds its polarity), not the previous one's still flowing
-                g[k] = (S[CPOL] * y[ISW] if IP[GDRIVE] == UNTIL_LATCHED else abs(y[ISW])) - P[ILATCH]
+                g[k] = (S[CPOL] * y[ISW] if IP[GDRIVE] != SINGLE_PULSE else abs(y[ISW])) - P[ILATCH]
                 k += 1
             if S[GATE] == 0 and S[LATCHED] != 0:
                 g[k] = ic - P[IH]
@@ -410,6 +419,11 @@ def guards(y, P, IP, S, gk, gxo, gpo, gnp, GP, g):
             if S[LATCHED] == CARRIED:
                 g[k] = -ic - P[IH]
                 k += 1
+        elif IP[CONTROL] == PHASE and IP[GDRIVE] == RETRIGGER and S[FIRE_HC] == S[HCIDX] and IP[NOFIRE] == 0:
+            # off after firing in this half-cycle: a retriggering controller watches the
+            # voltage across the switch (its polarity is judged in update_modes)
+            g[k] = abs(y[VD]) - RETRIGGER_SENSE_V
+            k += 1
         if IP[CONTROL] == RC_DIAC:
             if S[DIAC_ON] == 0:
                 g[k] = y[VT] - P[VBOP]
@@ -732,6 +746,9 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
     for _ in range(6):
         changed = False
         if IP[EDGE] == LEADING:
+            if _retrigger_due(t, y, P, IP, S, Q, HC):
+                _refire_phase(t, y, P, S, Q, HC)
+                changed = True
             if IP[CONTROL] == RC_DIAC:
                 if S[DIAC_ON] == 0:
                     if y[VT] >= P[VBOP]:
@@ -758,17 +775,17 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                             S[LATCHED] = 1     # gated again during a dip: it conducts on
                         _record_firing(t, S, Q, HC, P)
             if S[SW_ON] != 0:
-                i_latch = S[CPOL] * y[ISW] if IP[GDRIVE] == UNTIL_LATCHED else abs(y[ISW])
+                i_latch = S[CPOL] * y[ISW] if IP[GDRIVE] != SINGLE_PULSE else abs(y[ISW])
                 if S[GATE] != 0 and S[LATCHED] == 0 and i_latch >= P[ILATCH]:
                     S[LATCHED] = 1
                     S[CPOL] = 1 if y[ISW] > 0.0 else -1
-                    if IP[GDRIVE] == UNTIL_LATCHED and Q[GATE_END] == np.inf:
+                    if IP[GDRIVE] != SINGLE_PULSE and Q[GATE_END] == np.inf:
                         S[GATE] = 0       # past its window, the drive stops once the switch latches
                     changed = True
                 if S[GATE] == 0:
                     if S[LATCHED] == 0:
                         h = S[HCIDX]
-                        if h < HC.shape[0]:
+                        if h < HC.shape[0] and S[REFIRED] == 0:
                             HC[h, H_FAILED] += 1.0
                         _chop_loads(y, y[ISW], IP, gk, gxo, gpo, gnp, gn, GP)
                         _record_off(t, S, Q, HC, P, True, y, False)
@@ -896,7 +913,7 @@ def _half_cycle_polarity(Q, P):
 def _fire_phase(t, y, P, IP, S, Q, HC):
     """Phase control: the gate drive starts at t."""
     Q[T_FIRE] = np.inf
-    if IP[GDRIVE] == UNTIL_LATCHED:
+    if IP[GDRIVE] != SINGLE_PULSE:
         pol = _half_cycle_polarity(Q, P)
         if S[SW_ON] != 0:
             # the previous half-cycle's current still flows: the gate takes it over, so
@@ -911,7 +928,48 @@ def _fire_phase(t, y, P, IP, S, Q, HC):
         S[CPOL] = 1 if y[ISW] > 0.0 else -1
     S[SW_ON] = 1
     S[GATE] = 1
+    S[REFIRED] = 0
     Q[GATE_END] = t + P[GATEW]
+    _record_firing(t, S, Q, HC, P)
+
+
+@numba.njit(cache=True, _nrt=False)
+def _retrigger_due(t, y, P, IP, S, Q, HC):
+    """A retriggering phase controller fires again: its switch, fired in this
+    half-cycle, dropped out early (more than the early-drop-out margin before the
+    half-cycle's end: a drop-out after that is the natural one, where the controller's
+    pulses have stopped) and is off with the supply's own polarity across it above the
+    sense level.  A reversed voltage (lamp capacitors held above a falling supply) does
+    not re-fire it."""
+    if IP[CONTROL] != PHASE or IP[GDRIVE] != RETRIGGER or IP[NOFIRE] != 0 or S[SW_ON] != 0:
+        return False
+    h = S[HCIDX]
+    if S[FIRE_HC] != h or Q[T_FIRE] != np.inf:
+        return False
+    if _half_cycle_polarity(Q, P) * y[VD] < RETRIGGER_SENSE_V:
+        return False
+    if _angle_deg(t, Q[HC_START], P) >= 180.0:
+        return False
+    if h < HC.shape[0]:
+        return HC[h, H_EXT] < 180.0 - P[EARLY]
+    return _angle_deg(t, Q[HC_START], P) < 180.0 - P[EARLY]
+
+
+@numba.njit(cache=True, _nrt=False)
+def _refire_phase(t, y, P, S, Q, HC):
+    """The retriggering controller's new gate pulse: one pulse of its train (the gate
+    window at most), in which the
+    switch latches if this half-cycle's current reaches the latching current; if it
+    does not, the switch stops conducting at the window's end (the controller pulses
+    again while it sees the supply's voltage across the switch).  A re-fire that finds
+    no current to latch is not a failed firing: the controller only looked."""
+    pol = _half_cycle_polarity(Q, P)
+    S[CPOL] = pol
+    S[LATCHED] = 1 if pol * y[ISW] >= P[ILATCH] else 0
+    S[SW_ON] = 1
+    S[GATE] = 1
+    S[REFIRED] = 1
+    Q[GATE_END] = t + min(P[GATEW], RETRIGGER_PULSE_S)
     _record_firing(t, S, Q, HC, P)
 
 
@@ -1347,7 +1405,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         # then the modes and a consistent state after any event
         timed = False
         if IP[CONTROL] == PHASE and IP[EDGE] == LEADING and S[GATE] != 0 and abs(t - Q[GATE_END]) < 1e-12:
-            if IP[GDRIVE] == UNTIL_LATCHED and S[LATCHED] == 0:
+            if IP[GDRIVE] != SINGLE_PULSE and S[LATCHED] == 0 and S[REFIRED] == 0:
                 Q[GATE_END] = np.inf     # driven on until it latches or the half-cycle ends
             else:
                 S[GATE] = 0
@@ -1364,7 +1422,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         if S[LATCHED] == DIPPING and abs(t - Q[T_DIP_END]) < 1e-12:
             timed = True           # the dip has lasted the turn-off time (see update_modes)
         if abs(t - t_hb) < 1e-12:
-            if IP[GDRIVE] == UNTIL_LATCHED and S[GATE] != 0 and Q[GATE_END] == np.inf:
+            if IP[GDRIVE] != SINGLE_PULSE and S[GATE] != 0 and Q[GATE_END] == np.inf:
                 # a drive held past its window ends with its half-cycle; a switch that has
                 # not latched by then stops conducting
                 S[GATE] = 0

@@ -333,10 +333,11 @@ def pack(circuit: Circuit, *, setting: float | None, firing_angle_deg: float | N
         po += len(p)
         state_scale += _state_scales(ld, nx, sup)
     ny = xo
-    until_latched = dim.control is Control.PHASE and dim.gate_drive is GateDrive.UNTIL_LATCHED
+    gate_code = {GateDrive.SINGLE_PULSE: K.SINGLE_PULSE, GateDrive.UNTIL_LATCHED: K.UNTIL_LATCHED,
+                 GateDrive.RETRIGGER: K.RETRIGGER}[dim.gate_drive] if dim.control is Control.PHASE else K.SINGLE_PULSE
     IP = np.array([0 if dim.edge is Edge.LEADING else 1, 0 if dim.control is Control.PHASE else 1,
                    1 if no_firing else 0, len(loads), ny,
-                   K.UNTIL_LATCHED if until_latched else K.SINGLE_PULSE], dtype=np.int64)
+                   gate_code], dtype=np.int64)
     i_ref = max(sum(ld.count * ld.rated_power_w for ld in loads) / sup.voltage_v, 0.05)
     scale = np.array([i_ref, i_ref, sup.peak_v, sup.peak_v, sup.peak_v, 50.0, sup.peak_v] + state_scale)
     # absolute tolerances (engineering choice): a tenth of the tolerance of each unknown's

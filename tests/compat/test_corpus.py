@@ -30,20 +30,20 @@ CASES = load_cases()
 _TE_CUT = ("trailing edge at conduction below 90°: the drivers' bulk capacitors charge right up to the "
            "turn-off, the switch cuts 14–23 A in the supply's inductance and the dimmer reaches its clamp")
 NOT_DEFENSIBLE_TODAY = {
-    "led-le-2wire-phase-6x9w-bleeder.toml": "two-wire phase dimmer: the input capacitors' ring (8.5 kHz, "
-                                            "ζ ≈ 0.19) outlasts the 100 µs gate pulse; its fifth swing meets zero "
-                                            "at 37.2°, slower than the 10 A/ms commutating limit, and nothing "
-                                            "re-fires the triac",
-    "led-rcdiac-4x6w-correction.toml": "lamps without bleeder or damper: the ring after each firing drops the triac "
-                                       "out and re-fires it (48 times in 6 half-cycles); the device does not cure it",
+    "led-rcdiac-4x6w-correction.toml": "no bleeder: after the capacitive current's zero the lamps' input capacitors "
+                                       "and the device's 220 nF hold the lamp voltage; the timing network then "
+                                       "fires early in the next half-cycle whatever the knob (full light at 0.00) "
+                                       "and the ring re-fires the triac; no damper or device size tried cures it",
     "drv-te-neutral-8x12w.toml": _TE_CUT + "; its 20 A trip acts at low settings",
     "drv-277v-te-neutral-8x20w.toml": _TE_CUT + "; its 25 A trip acts at low settings",
     "brk-te-12x10w-b10.toml": _TE_CUT,
     "brk-te-15x10w-b10.toml": _TE_CUT,
     "brk-te-20x10w-c10.toml": _TE_CUT,
     "brk-te-30x10w-c10.toml": _TE_CUT + "; the 40 A trip acts at low settings",
-    "brk-le-30x10w-c10.toml": "30 drivers on leading edge: firing into 300 µF of bulk capacitance peaks at 54 A "
-                              "against the switch's 40 A repetitive rating at low settings (a safety failure)",
+    "brk-le-30x10w-c10.toml": "30 drivers on leading edge: firing into 450 µF of bulk capacitance at setting 0.05 "
+                              "draws a 3.2 ms pulse peaking at 56 A, above the switch's 40 A repetitive rating "
+                              "for 1.5 ms every half-cycle (a safety failure); below 0.35 conduction runs into "
+                              "the next half-cycle and the light flickers",
 }
 
 # Cases whose evaluation takes over a minute: none since the electronic transformer's

@@ -442,7 +442,7 @@ def test_gate_drive_and_soft_start_round_trip_and_bad_values_name_the_key():
     assert 'gate_drive = "single-pulse"\n' in text and "soft_start_ms = 120.0\n" in text
     back, _ = files.parse_profile(text)
     assert back == d and back.gate_drive is GateDrive.SINGLE_PULSE
-    assert Dimmer().gate_drive is GateDrive.UNTIL_LATCHED and Dimmer().soft_start_s == 0.05
+    assert Dimmer().gate_drive is GateDrive.RETRIGGER and Dimmer().soft_start_s == 0.05
     for bad, key in (('gate_drive = "held"', "gate_drive"), ("soft_start_ms = -5.0", "soft_start_ms")):
         wrong = re.sub(r"^" + key + r" = .*$", bad, text, flags=re.M)
         with pytest.raises(InputError) as info:

@@ -255,7 +255,7 @@ def _dip_circuit(holding_a, turn_off_s):
     50 mA without reaching zero.  Gate pulse 20 µs, over long before the trough."""
     d = Dimmer(control="phase", wiring="with-neutral", rc_diac=None, choke_inductance_h=0.0,
                holding_current_a=holding_a, latching_current_a=max(holding_a, 0.01), gate_window_s=20e-6,
-               triac_turn_off_time_s=turn_off_s)
+               triac_turn_off_time_s=turn_off_s, gate_drive="until-latched")   # the triac's own turn-off: no re-fire
     return Circuit(supply=Supply(source_resistance_ohm=0.1, source_inductance_h=0.0, wiring_capacitance_f=0.0),
                    dimmer=d, loads=(Linear(name="r", resistance_ohm=2400.0),
                                     Linear(name="ring", resistance_ohm=200.0, inductance_h=0.1,
@@ -297,7 +297,8 @@ def _reversing_circuit(holding_a, gate_s):
     the first trough, 150 µs after the firing.  No commutating-dI/dt carry-on, t_q = 0."""
     d = Dimmer(control="phase", wiring="with-neutral", rc_diac=None, choke_inductance_h=0.0,
                holding_current_a=holding_a, latching_current_a=max(holding_a, 0.02), gate_window_s=gate_s,
-               triac_turn_off_time_s=0.0, commutating_di_dt_a_per_s=0.0)
+               triac_turn_off_time_s=0.0, commutating_di_dt_a_per_s=0.0,
+               gate_drive="until-latched")   # the triac's own turn-off: no re-fire
     return Circuit(supply=Supply(source_resistance_ohm=0.1, source_inductance_h=0.0, wiring_capacitance_f=0.0),
                    dimmer=d, loads=(Linear(name="r", resistance_ohm=10000.0),
                                     Linear(name="ring", resistance_ohm=200.0, inductance_h=0.1,
