@@ -77,17 +77,17 @@ SECANT_ITERATIONS = 8
 R_PU_GRID = np.geomspace(2e-5, 0.2, 56)      # r = R·P/V²
 Q_PU_GRID = np.geomspace(0.15, 600.0, 44)    # q = ω·C·V²/P
 
-# The plausible box, searched when readings are given (engineering choice: about three
-# times beyond the span of ordinary parts on each side; common practice, no source:
-# fusible input resistors of a few to tens of ohms, bulk electrolytics near 0.3–2 µF
-# per watt).  A wider box only adds lamps that nobody builds, and each range end is
-# judged as a lamp of its own.
-SEARCH_R_OHM = (1.0, 150.0)
-SEARCH_C_F_PER_W = (0.1e-6, 6.8e-6)
-# The prior box for a label alone (common practice, no source: the span of ordinary
-# small lamps and drivers; the built-in archetypes sit inside it).
+# The box of ordinary parts, all a label alone can say and what readings narrow
+# (common practice, no source: fusible input resistors of a few to tens of ohms, bulk
+# electrolytics near 0.3–2 µF per watt; the built-in archetypes sit inside it).
+# Readings narrow a label, never widen it: a metered lamp's ranges lie inside the
+# label-only ones, so measuring never makes a verdict vaguer.
 LABEL_R_OHM = (2.2, 47.0)
 LABEL_C_F_PER_W = (0.3e-6, 2.2e-6)
+# Searched only when the readings fit no ordinary lamp (engineering choice: about three
+# times beyond the ordinary box on each side).
+SEARCH_R_OHM = (1.0, 150.0)
+SEARCH_C_F_PER_W = (0.1e-6, 6.8e-6)
 # Engineering choice: an input resistor burning more than 15 % of a lamp's power would
 # overheat inside a lamp base; no lamp is modelled with more.
 MAX_LOSS_SHARE = 0.15
@@ -383,7 +383,8 @@ def _table(diode_pu: float) -> BridgeTable:
     key = (round(diode_pu, 6), STEPS_PER_HALF_CYCLE)
     if key not in _TABLE_CACHE:
         rr, qq = np.meshgrid(R_PU_GRID, Q_PU_GRID, indexing="ij")
-        _TABLE_CACHE[key] = bridge_table(rr, qq, diode_pu=diode_pu)
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            _TABLE_CACHE[key] = bridge_table(rr, qq, diode_pu=diode_pu)
     return _TABLE_CACHE[key]
 
 
@@ -392,8 +393,22 @@ def _bleeder_current(theta: np.ndarray, v_pk: float) -> np.ndarray:
     return np.clip(v_pk * np.sin(theta) / BLEEDER_KNEE_V, -1.0, 1.0)
 
 
+def _outward(lo: float, hi: float) -> tuple[float, float]:
+    """A range rounded outward to 3 significant digits (a file shows 32.9, not 32.85294...)."""
+    def digits(x: float) -> float:
+        return 10.0 ** (math.floor(math.log10(abs(x))) - 2) if x != 0 else 1.0
+    low = math.floor(lo / digits(lo) + 1e-9) * digits(lo) if lo > 0 else lo      # 1e-9: 0.0025 stays 0.0025
+    high = math.ceil(hi / digits(hi) - 1e-9) * digits(hi) if hi > 0 else hi
+    return float(f"{low:.12g}"), float(f"{high:.12g}")
+
+
 def estimate(readings: Readings) -> Estimate:
     """Ranges of the capacitor-input model that agree with ``readings`` (module docstring)."""
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        return _estimate(readings)
+
+
+def _estimate(readings: Readings) -> Estimate:
     v = readings.voltage_v
     f = readings.frequency_hz
     w = 2.0 * math.pi * f
@@ -411,41 +426,53 @@ def estimate(readings: Readings) -> Estimate:
     cins = np.geomspace(*INPUT_CAPACITANCE_F, 5)
     bands = readings.bands()
     measured = readings.measured
-    r_box = SEARCH_R_OHM if measured else LABEL_R_OHM
-    c_box = SEARCH_C_F_PER_W if measured else LABEL_C_F_PER_W
-    kept_r, kept_c, kept_cin, kept_bl = [], [], [], []
-    for ib, bl in enumerate(bleeders):
-        i_bl = bl * _bleeder_current(theta, v_pk)
-        p_bl = float(np.mean(e * i_bl))
-        p_conv = (p_meas - p_bl) / a                    # per (r, q)
-        ok_p = p_conv > 0.05 * p_meas
-        p_conv = np.where(ok_p, p_conv, np.nan)
-        big_r = tab.r * v * v / p_conv
-        big_c = tab.q * p_conv / (w * v * v)
-        ok = ok_p & (big_r >= r_box[0]) & (big_r <= r_box[1]) & (loss_share <= MAX_LOSS_SHARE)
-        ok &= (big_c >= c_box[0] * readings.rated_power_w) & (big_c <= c_box[1] * readings.rated_power_w)
-        i_br = (p_conv / v)[:, None] * tab.j
-        for cin in cins:
-            i_tot = i_br + (w * cin * v_pk * cos_t)[None, :] + i_bl[None, :]
-            i_rms = np.sqrt(np.mean(i_tot * i_tot, axis=1))
-            pf = p_meas / (v * i_rms)
-            crest = np.max(np.abs(i_tot), axis=1) / i_rms
-            good = ok.copy()
-            for name, value in (("power_factor", pf), ("rms_current_a", i_rms), ("crest_factor", crest)):
-                if name in bands:
-                    lo, hi = bands[name]
-                    good &= (value >= lo) & (value <= hi)
-            idx = np.nonzero(good)[0]
-            kept_r.append(big_r[idx])
-            kept_c.append(big_c[idx])
-            kept_cin.append(np.full(idx.size, cin))
-            kept_bl.append(np.full(idx.size, bl))
-    r_all = np.concatenate(kept_r)
+
+    def match(r_box, c_box):
+        kept_r, kept_c, kept_cin, kept_bl = [], [], [], []
+        for bl in bleeders:
+            i_bl = bl * _bleeder_current(theta, v_pk)
+            p_bl = float(np.mean(e * i_bl))
+            p_conv = (p_meas - p_bl) / a                    # per (r, q)
+            ok_p = p_conv > 0.05 * p_meas
+            p_conv = np.where(ok_p, p_conv, np.nan)
+            big_r = tab.r * v * v / p_conv
+            big_c = tab.q * p_conv / (w * v * v)
+            ok = ok_p & (big_r >= r_box[0]) & (big_r <= r_box[1]) & (loss_share <= MAX_LOSS_SHARE)
+            ok &= (big_c >= c_box[0] * readings.rated_power_w) & (big_c <= c_box[1] * readings.rated_power_w)
+            i_br = (p_conv / v)[:, None] * tab.j
+            for cin in cins:
+                i_tot = i_br + (w * cin * v_pk * cos_t)[None, :] + i_bl[None, :]
+                i_rms = np.sqrt(np.mean(i_tot * i_tot, axis=1))
+                pf = p_meas / (v * i_rms)
+                crest = np.max(np.abs(i_tot), axis=1) / i_rms
+                good = ok.copy()
+                for name, value in (("power_factor", pf), ("rms_current_a", i_rms), ("crest_factor", crest)):
+                    if name in bands:
+                        lo, hi = bands[name]
+                        good &= (value >= lo) & (value <= hi)
+                idx = np.nonzero(good)[0]
+                kept_r.append(big_r[idx])
+                kept_c.append(big_c[idx])
+                kept_cin.append(np.full(idx.size, cin))
+                kept_bl.append(np.full(idx.size, bl))
+        return [np.concatenate(k) for k in (kept_r, kept_c, kept_cin, kept_bl)]
+
+    # the readings narrow what ordinary parts allow; only where they fit no ordinary
+    # lamp is the wider box searched (and said so)
+    notes = []
+    r_box, c_box = LABEL_R_OHM, LABEL_C_F_PER_W
+    r_all, c_all, cin_all, bl_all = match(r_box, c_box)
+    widened = False
+    if r_all.size == 0 and measured:
+        r_box, c_box = SEARCH_R_OHM, SEARCH_C_F_PER_W
+        r_all, c_all, cin_all, bl_all = match(r_box, c_box)
+        widened = True
+        notes.append(f"the readings fit no lamp with ordinary parts ({LABEL_R_OHM[0]:g}–{LABEL_R_OHM[1]:g} Ω, "
+                     f"{LABEL_C_F_PER_W[0] * 1e6:g}–{LABEL_C_F_PER_W[1] * 1e6:g} µF/W): the search was widened to "
+                     f"{SEARCH_R_OHM[0]:g}–{SEARCH_R_OHM[1]:g} Ω, {SEARCH_C_F_PER_W[0] * 1e6:g}–"
+                     f"{SEARCH_C_F_PER_W[1] * 1e6:g} µF/W")
     if r_all.size == 0:
         raise InputError(_no_fit_reason(readings, bands), key=_no_fit_key(bands))
-    c_all = np.concatenate(kept_c)
-    cin_all = np.concatenate(kept_cin)
-    bl_all = np.concatenate(kept_bl)
     step_r = R_PU_GRID[1] / R_PU_GRID[0]
     step_q = Q_PU_GRID[1] / Q_PU_GRID[0]
     r_lo, r_hi = max(r_all.min() / step_r, r_box[0]), min(r_all.max() * step_r, r_box[1])
@@ -455,15 +482,17 @@ def estimate(readings: Readings) -> Estimate:
     cin_lo = max(cin_all.min() / cin_step, INPUT_CAPACITANCE_F[0])
     cin_hi = min(cin_all.max() * cin_step, INPUT_CAPACITANCE_F[1])
     ranges: dict[str, tuple[float, float]] = {
-        "series_resistance_ohm": (r_lo, r_hi),
-        "bulk_capacitance_f": (c_lo, c_hi),
-        "input_capacitance_f": (cin_lo, cin_hi),
+        "series_resistance_ohm": _outward(r_lo, r_hi),
+        "bulk_capacitance_f": _outward(c_lo, c_hi),
+        "input_capacitance_f": _outward(cin_lo, cin_hi),
     }
     basis = {
-        "series_resistance_ohm": ("the readings within the meter's tolerance" if measured else
-                                  "the label alone: the span of ordinary lamps' input resistors (common practice, no source)"),
-        "bulk_capacitance_f": ("the readings within the meter's tolerance" if measured else
-                               "the label alone: 0.3–2.2 µF per watt (common practice, no source)"),
+        "series_resistance_ohm": ("ordinary lamps' input resistors, 2.2–47 Ω (common practice, no source)"
+                                  + ("; narrowed by the readings within the meter's tolerance" if measured else "")
+                                  + ("; widened: see the notes" if widened else "")),
+        "bulk_capacitance_f": ("ordinary lamps' bulk capacitors, 0.3–2.2 µF per watt (common practice, no source)"
+                               + ("; narrowed by the readings within the meter's tolerance" if measured else "")
+                               + ("; widened: see the notes" if widened else "")),
         "input_capacitance_f": "not readable: tens of nF, as ordinary lamps' filter capacitors (common practice, no source)",
     }
     fixed: dict[str, object] = {
@@ -473,14 +502,13 @@ def estimate(readings: Readings) -> Estimate:
     }
     if bleeder_max > 0:
         bl_step = bleeder_max * 0.25
-        ranges["bleeder_a"] = (max(bl_all.min() - bl_step, 0.0), min(bl_all.max() + bl_step, bleeder_max))
+        ranges["bleeder_a"] = _outward(max(bl_all.min() - bl_step, 0.0), min(bl_all.max() + bl_step, bleeder_max))
         fixed["bleeder_kind"] = "constant-current"
         basis["bleeder_a"] = ("not readable: from none to about 2.3 W/V of constant current, as the archetypes "
                               "(engineering choice)" + ("; narrowed by the readings" if measured else ""))
     else:
         fixed["bleeder_a"] = 0.0
         basis["bleeder_a"] = "none: a lamp not sold as dimmable has no bleeder (common practice, no source)"
-    notes = []
     if readings.recommended_edge is not None:
         notes.append(f"printed: {readings.recommended_edge} edge recommended (kept as a note; the checks judge the "
                      "lamp's circuit on each dimmer)")
