@@ -234,3 +234,37 @@ def cmd_describe_dimmer(args) -> int:
         out += [f"note: {n}" for n in est.notes]
         print("\n".join(out))
     return 0
+
+
+# ----------------------------------------------------------------- for the app
+
+def lamp_from_label(*, watts: float, volts: float, dimmable: bool = True, pf: float | None = None,
+                    edge: str | None = None, meter_w: float | None = None, meter_va: float | None = None,
+                    meter_pf: float | None = None, amps: float | None = None, crest: float | None = None,
+                    supply_volts: float | None = None, hz: float | None = None, count: int = 1,
+                    name: str | None = None) -> tuple[object, tuple, list[str]]:
+    """The lamp group, its ranges (``loads[1].…``) and one line per range, for the app's
+    form; InputError names the Readings field (``meter_power_factor``...)."""
+    from compat.lamp_label import Readings, estimate
+
+    if hz is None:
+        hz = 60.0 if volts < LOW_MAINS_V else 50.0
+    readings = Readings(rated_power_w=watts, rated_voltage_v=volts, dimmable=dimmable, label_power_factor=pf,
+                        recommended_edge=edge, supply_voltage_v=supply_volts, meter_power_w=meter_w, meter_va=meter_va,
+                        meter_power_factor=meter_pf, clamp_current_a=amps, crest_factor=crest, frequency_hz=hz)
+    est = estimate(readings)
+    lamp, ranges = est.lamp(name or lamp_name(readings), count)
+    return lamp, ranges, [_fmt_range(r) for r in ranges] + list(est.notes)
+
+
+def dimmer_from_faceplate(*, watts: float, min_watts: float, edge: str, wiring: str, led_watts: float | None = None,
+                          control: str | None = None, trim: bool = False, volts: float = 230.0,
+                          name: str | None = None) -> tuple[object, tuple, list[str]]:
+    """The dimmer, its ranges (``dimmer.…``) and one line per range, for the app's form."""
+    from compat.dimmer_label import Faceplate, estimate
+
+    face = Faceplate(rated_load_w=watts, min_load_w=min_watts, edge=edge, wiring=wiring, rated_led_w=led_watts,
+                     control=control, low_end_trim=trim, voltage_v=volts)
+    est = estimate(face)
+    dimmer, ranges = est.dimmer(name or f"{wiring} {edge}-edge dimmer {watts:g} W (from its faceplate)")
+    return dimmer, ranges, [_fmt_range(r) for r in ranges] + list(est.notes)

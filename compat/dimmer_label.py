@@ -17,7 +17,7 @@ import math
 from dataclasses import dataclass, field
 
 from loads.circuit import Range
-from loads.dimmer import Control, Dimmer, Edge, RcDiac, Wiring
+from loads.dimmer import Dimmer, RcDiac
 from loads.errors import InputError
 
 # Unreadable figures of a leading-edge (triac) dimmer, SI.

@@ -277,7 +277,9 @@ class Readings:
             if not ok:
                 raise InputError(reason, key=key)
 
-        finite = (lambda x: x is None or (isinstance(x, (int, float)) and math.isfinite(x)))
+        def finite(x) -> bool:
+            return x is None or (isinstance(x, (int, float)) and math.isfinite(x))
+
         for key in ("rated_power_w", "rated_voltage_v", "label_power_factor", "supply_voltage_v", "meter_power_w",
                     "meter_va", "meter_power_factor", "clamp_current_a", "crest_factor", "frequency_hz"):
             need(finite(getattr(self, key)), key, "must be a finite number")

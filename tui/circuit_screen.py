@@ -39,6 +39,8 @@ PROGRESS_INTERVAL_S = 0.1
 # 220 Ω and 100 nF (common practice, no source: X2 capacitors of 47–470 nF with a
 # series resistor of a few hundred ohms).  The sizing screen proposes a real one.
 DEFAULT_CORRECTION = dict(name="correction device", resistance_ohm=220.0, series_capacitance_f=100e-9)
+# The picker's first entry: describe the lamp or dimmer from its label (tui/label_forms.py).
+FROM_LABEL = object()
 
 
 class CircuitScreen(Screen):
@@ -352,9 +354,14 @@ class CircuitScreen(Screen):
 
     def action_add_part(self, what: str = "lamp") -> None:
         entries, problems = self._catalogue_entries(what)
+        if self.services.describe is not None:
+            entries.append(("describe it yourself", "From the label…", FROM_LABEL))
 
         async def chosen(obj) -> None:
             if obj is None:
+                return
+            if obj is FROM_LABEL:
+                self._from_label(what)
                 return
             if isinstance(obj, LoadGroup):
                 loads = list(self.circuit.loads) + [obj]
@@ -364,6 +371,37 @@ class CircuitScreen(Screen):
                 await self._try_change(lambda: dataclasses.replace(self.circuit, dimmer=obj), select="dimmer")
         title = "Add a lamp group" if what == "lamp" else "Replace the dimmer"
         self.app.push_screen(PickerScreen(title, entries, problems), chosen)
+
+    def _from_label(self, what: str) -> None:
+        """The "From the label…" form; the lamp or dimmer it returns joins the circuit
+        with its ranges (renumbered to the group's place)."""
+        from tui.label_forms import DimmerLabelScreen, LampLabelScreen
+        supply = self.circuit.supply
+
+        async def described(result) -> None:
+            if result is None:
+                return
+            obj, ranges, lines = result
+            if isinstance(obj, LoadGroup):
+                index = len(self.circuit.loads) + 1
+                moved = tuple(dataclasses.replace(r, path=r.path.replace("loads[1].", f"loads[{index}].", 1),
+                                                  file_key=r.file_key.replace("loads[1].", f"loads[{index}].", 1))
+                              for r in ranges)
+                done = await self._try_change(lambda: dataclasses.replace(
+                    self.circuit, loads=self.circuit.loads + (obj,), ranges=self.circuit.ranges + moved),
+                    select=f"load:{index - 1}")
+            else:
+                kept = tuple(r for r in self.circuit.ranges if not r.path.startswith("dimmer."))
+                done = await self._try_change(lambda: dataclasses.replace(
+                    self.circuit, dimmer=obj, ranges=kept + tuple(ranges)), select="dimmer")
+            if done:
+                self.notify("Ranges: " + "; ".join(lines), title=f"Added '{terminal_safe(obj.name)}'", timeout=12)
+        if what == "lamp":
+            screen = LampLabelScreen(self.services.describe, {"volts": f"{supply.voltage_v:g}",
+                                                              "hz": f"{supply.frequency_hz:g}"})
+        else:
+            screen = DimmerLabelScreen(self.services.describe, {"volts": f"{supply.voltage_v:g}"})
+        self.app.push_screen(screen, described)
 
     def _catalogue_entries(self, what: str) -> tuple[list, list[str]]:
         from loads.dimmer import Dimmer

@@ -420,3 +420,54 @@ async def test_a_failed_export_names_the_target_file_not_the_temporary_one(tmp_p
         await wait_for(pilot, lambda: any(n.title == "Not exported" for n in app._notifications))
         note = next(n for n in app._notifications if n.title == "Not exported")
         assert note.message.startswith(f"{target}: ") and ".tmp" not in note.message
+
+
+class FakeDescribe:
+    """Stands in for compat.describe: records the form's figures, returns a lamp with
+    one range (the estimate itself is tested in tests/compat/test_lamp_label.py)."""
+
+    def __init__(self) -> None:
+        self.calls: list[dict] = []
+
+    def lamp_from_label(self, **kwargs):
+        from loads.circuit import Range
+        from loads.driver import ElectronicDriver
+        self.calls.append(kwargs)
+        if kwargs.get("meter_pf", 0.5) > 0.9:
+            from loads.errors import InputError
+            raise InputError("no capacitor-input lamp draws this", key="power_factor")
+        lamp = ElectronicDriver(name="LED 9 W (from its label)", rated_power_w=kwargs["watts"],
+                                series_resistance_ohm=20.0, count=kwargs["count"])
+        return lamp, (Range("loads[1].series_resistance_ohm", "loads[1].series_resistance_ohm", 5.0, 35.0),), ["R 5–35 Ω"]
+
+
+@sync
+async def test_a_lamp_from_its_label_joins_the_circuit_with_its_ranges():
+    describe = FakeDescribe()
+    app = make_app()
+    app.services.describe = describe
+    async with app.run_test(size=(100, 34)) as pilot:
+        screen = await settled(pilot)
+        await select_part(pilot, "load:1")
+        await pilot.press("a")
+        await wait_for(pilot, lambda: isinstance(app.screen, PickerScreen))
+        assert app.screen.entries[-1][1] == "From the label…"           # beside the catalogue, last
+        await pilot.press("end", "enter")
+        from tui.label_forms import LampLabelScreen
+        await wait_for(pilot, lambda: isinstance(app.screen, LampLabelScreen))
+        form = app.screen
+        form.query_one("#f-watts", Input).value = "9 W"
+        form.query_one("#f-meter_pf", Input).value = "0.95"
+        form.query_one("#f-count", Input).value = "3"
+        await pilot.click("#add")
+        # a reading the model refuses: one line at the form, naming the reading in the trade's words
+        await wait_for(pilot, lambda: "Meter: power factor" in str(form.query_one("#label-error", Label).render()))
+        form.query_one("#f-meter_pf", Input).value = "0.5"
+        await pilot.click("#add")
+        await wait_for(pilot, lambda: isinstance(app.screen, CircuitScreen))
+        assert describe.calls[-1]["watts"] == 9.0 and describe.calls[-1]["meter_pf"] == 0.5
+        assert describe.calls[-1]["volts"] == 230.0 and describe.calls[-1]["count"] == 3
+        assert screen.circuit.loads[-1].name == "LED 9 W (from its label)" and screen.circuit.loads[-1].count == 3
+        # the range moved to the group's place in the circuit (the third group)
+        assert [r.path for r in screen.circuit.ranges] == ["loads[3].series_resistance_ohm"]
+        assert screen.query_one(CircuitOutline).current_key == "load:2"
