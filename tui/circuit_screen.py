@@ -9,7 +9,9 @@ so a result for an older circuit is never shown as current.
 from __future__ import annotations
 
 import dataclasses
+import math
 import os
+import re
 import tempfile
 import threading
 import time
@@ -41,6 +43,57 @@ PROGRESS_INTERVAL_S = 0.1
 DEFAULT_CORRECTION = dict(name="correction device", resistance_ohm=220.0, series_capacitance_f=100e-9)
 # The picker's first entry: describe the lamp or dimmer from its label (tui/label_forms.py).
 FROM_LABEL = object()
+
+
+_INDEX = re.compile(r"^loads\[(\d+)\]")
+
+
+def _value_at(circuit, path: str):
+    """The value a range's path (``loads[2].bleeder_a``, ``dimmer.rc_diac.breakover_v``) names."""
+    obj = circuit
+    for part in path.split("."):
+        m = re.fullmatch(r"(\w+)\[(\d+)\]", part)
+        if m:
+            seq = getattr(obj, m.group(1), ())
+            i = int(m.group(2)) - 1
+            obj = seq[i] if 0 <= i < len(seq) else None
+        else:
+            obj = getattr(obj, part, None)
+        if obj is None:
+            return None
+    return obj
+
+
+def ranges_still_meant(circuit):
+    """The circuit without ranges that no longer describe it: a value edited away from
+    its range's midpoint (the rule the file writer applies), a part replaced, a group
+    that is gone.  The checks would otherwise still judge the range's ends."""
+    kept = []
+    for r in circuit.ranges:
+        value = _value_at(circuit, r.path)
+        if isinstance(value, (int, float)) and math.isclose(value, 0.5 * (r.low + r.high), rel_tol=1e-9,
+                                                              abs_tol=1e-300):
+            kept.append(r)
+    if len(kept) == len(circuit.ranges):
+        return circuit
+    return dataclasses.replace(circuit, ranges=tuple(kept))
+
+
+def renumbered(ranges, mapping) -> tuple:
+    """Ranges of lamp groups moved to new places: ``mapping(i)`` is the new 1-based
+    index of group i, or None where the group is gone."""
+    out = []
+    for r in ranges:
+        m = _INDEX.match(r.path)
+        if m is None:
+            out.append(r)
+            continue
+        new = mapping(int(m.group(1)))
+        if new is None:
+            continue
+        out.append(dataclasses.replace(r, path=_INDEX.sub(f"loads[{new}]", r.path, count=1),
+                                       file_key=_INDEX.sub(f"loads[{new}]", r.file_key, count=1)))
+    return tuple(out)
 
 
 class CircuitScreen(Screen):
@@ -128,6 +181,7 @@ class CircuitScreen(Screen):
     # ------------------------------------------------------------ circuit changes
     async def set_circuit(self, circuit, *, select: str | None = None, dirty: bool = True) -> None:
         """Replace the circuit (already validated), refresh the views, schedule a check."""
+        circuit = ranges_still_meant(circuit)
         self.circuit = circuit
         self.dirty = dirty or self.dirty
         self.query_one(CircuitOutline).show_circuit(circuit, select)
@@ -168,7 +222,7 @@ class CircuitScreen(Screen):
     @on(PartEditor.Edited)
     async def _edited(self, event: PartEditor.Edited) -> None:
         try:
-            circuit = self._with_part(event.key, event.obj)
+            circuit = ranges_still_meant(self._with_part(event.key, event.obj))
         except InputError as error:
             self.notify(str(error), title="Not changed", severity="error")
             return
@@ -203,14 +257,20 @@ class CircuitScreen(Screen):
             self.notify("+ and - change the count of a lamp group; choose one in the outline.")
         elif event.action == "duplicate" and index is not None:
             copy = dataclasses.replace(loads[index], name=loads[index].name + " (copy)")
+            # later groups move one place on; the copy takes the original's ranges
+            moved = renumbered(self.circuit.ranges, lambda i: i if i <= index + 1 else i + 1)
+            copied = renumbered([r for r in self.circuit.ranges if _INDEX.match(r.path)
+                                 and int(_INDEX.match(r.path).group(1)) == index + 1], lambda i: index + 2)
             await self._try_change(lambda: dataclasses.replace(self.circuit, loads=tuple(
-                loads[:index + 1] + [copy] + loads[index + 1:])), select=f"load:{index + 1}")
+                loads[:index + 1] + [copy] + loads[index + 1:]), ranges=moved + copied), select=f"load:{index + 1}")
         elif event.action == "remove" and index is not None:
             if len(loads) == 1:
                 self.notify("A circuit needs at least one lamp group.", severity="warning")
                 return
+            moved = renumbered(self.circuit.ranges,
+                               lambda i: i if i <= index else (None if i == index + 1 else i - 1))
             await self._try_change(lambda: dataclasses.replace(self.circuit, loads=tuple(
-                loads[:index] + loads[index + 1:])), select=f"load:{max(index - 1, 0)}")
+                loads[:index] + loads[index + 1:]), ranges=moved), select=f"load:{max(index - 1, 0)}")
         elif event.action == "remove" and key in ("breaker", "correction"):
             await self._try_change(lambda: dataclasses.replace(self.circuit, **{key: None}), select=key)
         elif event.action == "fit":

@@ -471,3 +471,26 @@ async def test_a_lamp_from_its_label_joins_the_circuit_with_its_ranges():
         # the range moved to the group's place in the circuit (the third group)
         assert [r.path for r in screen.circuit.ranges] == ["loads[3].series_resistance_ohm"]
         assert screen.query_one(CircuitOutline).current_key == "load:2"
+
+
+def test_ranges_follow_their_groups_and_go_when_edited_away():
+    # behaviour of our own: a range belongs to a group's value; the checks judge a
+    # range's ends, so a range the circuit no longer carries must not stay behind
+    import dataclasses
+
+    from loads.circuit import Range
+    from tests.tui.fakes import sample_circuit
+    from tui.circuit_screen import ranges_still_meant, renumbered
+    c = sample_circuit()
+    lamp = dataclasses.replace(c.loads[1], bleeder_a=0.005)
+    c = dataclasses.replace(c, loads=(c.loads[0], lamp, lamp), ranges=(
+        Range("loads[2].bleeder_a", "loads[2].bleeder_ma", 0.0, 0.01),
+        Range("loads[3].bleeder_a", "loads[3].bleeder_ma", 0.0, 0.01),
+        Range("dimmer.holding_current_a", "dimmer.holding_current_ma", 0.01, 0.04)))
+    assert ranges_still_meant(c) is c                          # every value at its midpoint
+    edited = dataclasses.replace(c, loads=(c.loads[0], dataclasses.replace(lamp, bleeder_a=0.002), lamp))
+    assert [r.path for r in ranges_still_meant(edited).ranges] == ["loads[3].bleeder_a", "dimmer.holding_current_a"]
+    # group 2 removed: its range goes, group 3's becomes group 2's
+    assert [r.path for r in renumbered(c.ranges, lambda i: i if i < 2 else (None if i == 2 else i - 1))] == [
+        "loads[2].bleeder_a", "dimmer.holding_current_a"]
+    assert renumbered(c.ranges, lambda i: i + 1)[1].file_key == "loads[4].bleeder_ma"
