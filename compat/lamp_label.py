@@ -102,14 +102,18 @@ BLEEDER_W_PER_V = 2.3
 START_FRACTION_OF_PEAK = 0.185
 
 # Meter tolerances.  Plug-in meters show PF to 0.01 but at a few watts are good to a few
-# hundredths (from memory); a printed PF is a declared value that a lamp may beat or miss
-# by about 0.05 (from memory: lamp performance standards allow a measured PF 0.05 below
-# the declared one); the power (from memory: ±(2 % + 0.2 W) at lamp powers); a true-rms
-# clamp on its lowest range (from memory: ±(2 % + 5 mA)); crest factor (engineering
-# choice: ±5 %, the meter samples a narrow pulse).
+# hundredths (from memory); a printed PF is a declared value that a lamp may miss by
+# about 0.05 (from memory: lamp performance standards allow a measured PF 0.05 below
+# the declared one) and often beats (engineering choice: up to 0.10 above it, a printed
+# PF being commonly a floor); the power (from memory: ±(2 % + 0.2 W) at lamp powers; a
+# label's watts without a meter: ±10 %, from memory, the tolerance lamp standards allow
+# on rated power); a true-rms clamp on its lowest range (from memory: ±(2 % + 5 mA));
+# crest factor (engineering choice: ±5 %, the meter samples a narrow pulse).  The power
+# scales every model current, so its tolerance widens the current's band.
 METER_PF_TOL = 0.03
 LABEL_PF_TOL = 0.05
 METER_W_REL, METER_W_ABS = 0.02, 0.2
+LABEL_W_REL = 0.10
 CLAMP_A_REL, CLAMP_A_ABS = 0.02, 0.005
 METER_VA_REL, METER_VA_ABS = 0.02, 0.3
 CREST_REL = 0.05
@@ -344,7 +348,11 @@ class Readings:
                 raise InputError("the clamp current and the meter's VA disagree beyond their tolerances "
                                  f"({self.clamp_current_a:g} A against {self.meter_va / v:.3g} A from VA/V)",
                                  key="clamp_current_a")
-            out["rms_current_a"] = (max(lo, 0.0), hi)
+            if self.meter_power_w is not None:
+                rel = METER_W_REL + METER_W_ABS / self.meter_power_w
+            else:
+                rel = LABEL_W_REL
+            out["rms_current_a"] = (max(lo, 0.0) / (1 + rel), hi * (1 + rel))
         if self.crest_factor is not None:
             out["crest_factor"] = (self.crest_factor * (1 - CREST_REL), self.crest_factor * (1 + CREST_REL))
         return out
