@@ -35,9 +35,17 @@ TRIP_TIMES_RATED = (4.0, 12.0)
 # A transistor dimmer's switch and protection, as the trailing-edge archetype (each
 # figure's origin is in loads/catalogue/dimmer-trailing-two-wire-250w.toml).
 TRAILING_FIXED: dict[str, object] = {
-    "on_state_voltage_v": 1.5, "on_state_resistance_ohm": 0.5, "surge_peak_a": 40.0, "surge_i2t_a2s": 8.0,
-    "repetitive_peak_a": 10.0, "choke_inductance_h": 0.0, "snubber_capacitance_f": 10e-9,
-    "snubber_resistance_ohm": 100.0, "clamp_voltage_v": 400.0, "soft_start_s": 0.05,
+    "on_state_voltage_v": 1.5, "on_state_resistance_ohm": 0.5, "choke_inductance_h": 0.0,
+    "snubber_capacitance_f": 10e-9, "snubber_resistance_ohm": 100.0, "clamp_voltage_v": 400.0, "soft_start_s": 0.05,
+}
+# The switch's current ratings (surge peak [A], surge I²t [A²s], repetitive peak [A]) of
+# the reference dimmer they come from, and its rated current [A]: the trailing-edge
+# archetype (250 W at 230 V) and loads.dimmer's defaults for a 400 W leading-edge dimmer
+# at 230 V.  A dimmer rated for more carries a switch rated for more: the peaks are
+# scaled with the rated current and the I²t with its square (engineering choice).
+SWITCH_RATINGS = {
+    "trailing": ((40.0, 8.0, 10.0), 250.0 / 230.0),
+    "leading": ((80.0, 30.0, 20.0), 400.0 / 230.0),
 }
 
 
@@ -133,6 +141,12 @@ def estimate(face: Faceplate) -> DimmerEstimate:
     ranges: dict[str, tuple[float, float]] = {}
     basis: dict[str, str] = {}
     notes: list[str] = []
+    (surge_a, i2t_a2s, repetitive_a), reference_a = SWITCH_RATINGS[face.edge]
+    scale = (face.rated_load_w / face.voltage_v) / reference_a
+    fixed.update(surge_peak_a=surge_a * scale, surge_i2t_a2s=i2t_a2s * scale * scale, repetitive_peak_a=repetitive_a * scale)
+    notes.append(f"switch ratings scaled from a reference {'250' if face.edge == 'trailing' else '400'} W dimmer by "
+                 f"its rated current: surge {surge_a * scale:.3g} A, {i2t_a2s * scale * scale:.3g} A²s, repetitive "
+                 f"peak {repetitive_a * scale:.3g} A (engineering choice)")
     if face.control is None:
         notes.append(f"control taken as {control} (the usual kind for a {face.wiring} {face.edge}-edge dimmer; "
                      "common practice, no source)")
@@ -152,7 +166,7 @@ def estimate(face: Faceplate) -> DimmerEstimate:
         ranges["trip_current_a"] = (TRIP_TIMES_RATED[0] * rated_a, TRIP_TIMES_RATED[1] * rated_a)
         basis["trip_current_a"] = ("not printed: an electronic trip at 4–12 times the rated current "
                                    "(engineering choice around the trade's \"several times\"; common practice, no source)")
-        notes.append("the switch's voltage drop, surge ratings and soft start are the trailing-edge archetype's "
+        notes.append("the switch's voltage drop, clamp and soft start are the trailing-edge archetype's "
                      "(engineering choices, see the built-in catalogue)")
     if face.wiring == "two-wire" and control == "phase":
         ranges["self_supply_a"] = SELF_SUPPLY_A

@@ -171,3 +171,14 @@ def test_circuit_b_one_lamp_below_a_rotary_dimmers_minimum_is_unsuitable(tmp_pat
     assert report["verdict"] == "unsuitable"
     minimum = next(c for c in report["checks"] if c["id"] == "minimum-load")
     assert minimum["status"] == "fail" and not minimum.get("deciding_input")
+
+
+def test_switch_ratings_follow_the_dimmers_rating():
+    # our own rule (engineering choice, compat/dimmer_label.py): the reference dimmer's
+    # figures at its own rating, peaks ∝ rated current, I²t ∝ its square; exact to rounding
+    same = dimmer_estimate(Faceplate(rated_load_w=250, min_load_w=10, edge="trailing", wiring="two-wire")).fixed
+    assert (same["surge_peak_a"], same["surge_i2t_a2s"], same["repetitive_peak_a"]) == pytest.approx(
+        (40.0, 8.0, 10.0), rel=1e-12)
+    double = dimmer_estimate(Faceplate(rated_load_w=800, min_load_w=40, edge="leading", wiring="with-neutral")).fixed
+    assert (double["surge_peak_a"], double["surge_i2t_a2s"], double["repetitive_peak_a"]) == pytest.approx(
+        (160.0, 120.0, 40.0), rel=1e-12)
