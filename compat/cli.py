@@ -8,6 +8,7 @@
     dimfit demo [PATH]           write the demo circuit, then check it
     dimfit catalogue             the built-in archetypes
     dimfit selftest              compile the simulator now and check it on a closed form
+    dimfit describe lamp|dimmer  a profile from a label and a meter reading (compat/describe.py)
 
 Exit codes: 0 done (``check``: suitable, cautions allowed); 1 ``check`` found the
 circuit unsuitable or a site test needed; 2 bad input (one line on stderr, never a
@@ -576,6 +577,9 @@ def build_parser(open_app: Callable[[str | None], int | None] | None = None) -> 
 
     p = sub.add_parser("selftest", help="compile the simulator now (first run only) and check it")
     p.set_defaults(func=cmd_selftest)
+
+    from compat.describe import add_parser as add_describe
+    add_describe(sub)
     return parser
 
 

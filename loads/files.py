@@ -99,7 +99,7 @@ _FILE_UNIT: dict[str, str] = {
 # Inputs that may be given as {min, max}: (class, field).
 RANGEABLE: frozenset[tuple[type, str]] = frozenset({
     (Dimmer, "holding_current_a"), (Dimmer, "latching_current_a"),
-    (Dimmer, "gate_trigger_current_a"), (Dimmer, "self_supply_a"),
+    (Dimmer, "gate_trigger_current_a"), (Dimmer, "self_supply_a"), (Dimmer, "trip_current_a"),
     (RcDiac, "breakover_v"),
     (Supply, "source_resistance_ohm"), (Supply, "source_inductance_h"),
     *((LOAD_CLASSES[LoadKind.ELECTRONIC_DRIVER], f) for f in

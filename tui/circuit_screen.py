@@ -9,7 +9,9 @@ so a result for an older circuit is never shown as current.
 from __future__ import annotations
 
 import dataclasses
+import math
 import os
+import re
 import tempfile
 import threading
 import time
@@ -39,6 +41,59 @@ PROGRESS_INTERVAL_S = 0.1
 # 220 Ω and 100 nF (common practice, no source: X2 capacitors of 47–470 nF with a
 # series resistor of a few hundred ohms).  The sizing screen proposes a real one.
 DEFAULT_CORRECTION = dict(name="correction device", resistance_ohm=220.0, series_capacitance_f=100e-9)
+# The picker's first entry: describe the lamp or dimmer from its label (tui/label_forms.py).
+FROM_LABEL = object()
+
+
+_INDEX = re.compile(r"^loads\[(\d+)\]")
+
+
+def _value_at(circuit, path: str):
+    """The value a range's path (``loads[2].bleeder_a``, ``dimmer.rc_diac.breakover_v``) names."""
+    obj = circuit
+    for part in path.split("."):
+        m = re.fullmatch(r"(\w+)\[(\d+)\]", part)
+        if m:
+            seq = getattr(obj, m.group(1), ())
+            i = int(m.group(2)) - 1
+            obj = seq[i] if 0 <= i < len(seq) else None
+        else:
+            obj = getattr(obj, part, None)
+        if obj is None:
+            return None
+    return obj
+
+
+def ranges_still_meant(circuit):
+    """The circuit without ranges that no longer describe it: a value edited away from
+    its range's midpoint (the rule the file writer applies), a part replaced, a group
+    that is gone.  The checks would otherwise still judge the range's ends."""
+    kept = []
+    for r in circuit.ranges:
+        value = _value_at(circuit, r.path)
+        if isinstance(value, (int, float)) and math.isclose(value, 0.5 * (r.low + r.high), rel_tol=1e-9,
+                                                              abs_tol=1e-300):
+            kept.append(r)
+    if len(kept) == len(circuit.ranges):
+        return circuit
+    return dataclasses.replace(circuit, ranges=tuple(kept))
+
+
+def renumbered(ranges, mapping) -> tuple:
+    """Ranges of lamp groups moved to new places: ``mapping(i)`` is the new 1-based
+    index of group i, or None where the group is gone."""
+    out = []
+    for r in ranges:
+        m = _INDEX.match(r.path)
+        if m is None:
+            out.append(r)
+            continue
+        new = mapping(int(m.group(1)))
+        if new is None:
+            continue
+        out.append(dataclasses.replace(r, path=_INDEX.sub(f"loads[{new}]", r.path, count=1),
+                                       file_key=_INDEX.sub(f"loads[{new}]", r.file_key, count=1)))
+    return tuple(out)
 
 
 class CircuitScreen(Screen):
@@ -126,6 +181,7 @@ class CircuitScreen(Screen):
     # ------------------------------------------------------------ circuit changes
     async def set_circuit(self, circuit, *, select: str | None = None, dirty: bool = True) -> None:
         """Replace the circuit (already validated), refresh the views, schedule a check."""
+        circuit = ranges_still_meant(circuit)
         self.circuit = circuit
         self.dirty = dirty or self.dirty
         self.query_one(CircuitOutline).show_circuit(circuit, select)
@@ -166,7 +222,7 @@ class CircuitScreen(Screen):
     @on(PartEditor.Edited)
     async def _edited(self, event: PartEditor.Edited) -> None:
         try:
-            circuit = self._with_part(event.key, event.obj)
+            circuit = ranges_still_meant(self._with_part(event.key, event.obj))
         except InputError as error:
             self.notify(str(error), title="Not changed", severity="error")
             return
@@ -201,14 +257,20 @@ class CircuitScreen(Screen):
             self.notify("+ and - change the count of a lamp group; choose one in the outline.")
         elif event.action == "duplicate" and index is not None:
             copy = dataclasses.replace(loads[index], name=loads[index].name + " (copy)")
+            # later groups move one place on; the copy takes the original's ranges
+            moved = renumbered(self.circuit.ranges, lambda i: i if i <= index + 1 else i + 1)
+            copied = renumbered([r for r in self.circuit.ranges if _INDEX.match(r.path)
+                                 and int(_INDEX.match(r.path).group(1)) == index + 1], lambda i: index + 2)
             await self._try_change(lambda: dataclasses.replace(self.circuit, loads=tuple(
-                loads[:index + 1] + [copy] + loads[index + 1:])), select=f"load:{index + 1}")
+                loads[:index + 1] + [copy] + loads[index + 1:]), ranges=moved + copied), select=f"load:{index + 1}")
         elif event.action == "remove" and index is not None:
             if len(loads) == 1:
                 self.notify("A circuit needs at least one lamp group.", severity="warning")
                 return
+            moved = renumbered(self.circuit.ranges,
+                               lambda i: i if i <= index else (None if i == index + 1 else i - 1))
             await self._try_change(lambda: dataclasses.replace(self.circuit, loads=tuple(
-                loads[:index] + loads[index + 1:])), select=f"load:{max(index - 1, 0)}")
+                loads[:index] + loads[index + 1:]), ranges=moved), select=f"load:{max(index - 1, 0)}")
         elif event.action == "remove" and key in ("breaker", "correction"):
             await self._try_change(lambda: dataclasses.replace(self.circuit, **{key: None}), select=key)
         elif event.action == "fit":
@@ -352,9 +414,14 @@ class CircuitScreen(Screen):
 
     def action_add_part(self, what: str = "lamp") -> None:
         entries, problems = self._catalogue_entries(what)
+        if self.services.describe is not None:
+            entries.append(("describe it yourself", "From the label…", FROM_LABEL))
 
         async def chosen(obj) -> None:
             if obj is None:
+                return
+            if obj is FROM_LABEL:
+                self._from_label(what)
                 return
             if isinstance(obj, LoadGroup):
                 loads = list(self.circuit.loads) + [obj]
@@ -364,6 +431,37 @@ class CircuitScreen(Screen):
                 await self._try_change(lambda: dataclasses.replace(self.circuit, dimmer=obj), select="dimmer")
         title = "Add a lamp group" if what == "lamp" else "Replace the dimmer"
         self.app.push_screen(PickerScreen(title, entries, problems), chosen)
+
+    def _from_label(self, what: str) -> None:
+        """The "From the label…" form; the lamp or dimmer it returns joins the circuit
+        with its ranges (renumbered to the group's place)."""
+        from tui.label_forms import DimmerLabelScreen, LampLabelScreen
+        supply = self.circuit.supply
+
+        async def described(result) -> None:
+            if result is None:
+                return
+            obj, ranges, lines = result
+            if isinstance(obj, LoadGroup):
+                index = len(self.circuit.loads) + 1
+                moved = tuple(dataclasses.replace(r, path=r.path.replace("loads[1].", f"loads[{index}].", 1),
+                                                  file_key=r.file_key.replace("loads[1].", f"loads[{index}].", 1))
+                              for r in ranges)
+                done = await self._try_change(lambda: dataclasses.replace(
+                    self.circuit, loads=self.circuit.loads + (obj,), ranges=self.circuit.ranges + moved),
+                    select=f"load:{index - 1}")
+            else:
+                kept = tuple(r for r in self.circuit.ranges if not r.path.startswith("dimmer."))
+                done = await self._try_change(lambda: dataclasses.replace(
+                    self.circuit, dimmer=obj, ranges=kept + tuple(ranges)), select="dimmer")
+            if done:
+                self.notify("Ranges: " + "; ".join(lines), title=f"Added '{terminal_safe(obj.name)}'", timeout=12)
+        if what == "lamp":
+            screen = LampLabelScreen(self.services.describe, {"volts": f"{supply.voltage_v:g}",
+                                                              "hz": f"{supply.frequency_hz:g}"})
+        else:
+            screen = DimmerLabelScreen(self.services.describe, {"volts": f"{supply.voltage_v:g}"})
+        self.app.push_screen(screen, described)
 
     def _catalogue_entries(self, what: str) -> tuple[list, list[str]]:
         from loads.dimmer import Dimmer

@@ -35,6 +35,8 @@ HELP_TEXT = """\
   d        copy the lamp group             dimmer: replace it
   x del    remove the lamp group  p        save lamp/dimmer profile
   f        fit or remove a correction device
+  a, last entry "From the label…": a lamp or dimmer from what its
+           label says and a meter reads
 
 [b]Fields[/b]: type values as on a job sheet:
   47n  4.7 uF  4n7  60 W  150u  25 mA  4k7

@@ -147,7 +147,8 @@ class Services:
     simulate(circuit, setting=..., cycles=..., start=...) -> SimResult;
     size(circuit) -> dict; render_markdown(report, circuit) -> str;
     files: read_circuit, write_circuit, save_profile, list_profiles, read_profile;
-    catalogue: list_archetypes, demo_circuit; cautions() -> tuple[str, ...]."""
+    catalogue: list_archetypes, demo_circuit; cautions() -> tuple[str, ...];
+    describe: lamp_from_label, dimmer_from_faceplate (compat.describe; None: not offered)."""
 
     evaluate: Callable[..., Any]
     simulate: Callable[..., Any]
@@ -157,10 +158,11 @@ class Services:
     catalogue: Any
     cautions: Callable[[], tuple[str, ...]]
     shutdown: Callable[[], None] = lambda: None
+    describe: Any = None
 
 
 def make_services(*, evaluate=None, simulate=None, size=None, render_markdown=None, files=None,
-                  catalogue=None, cautions=None) -> Services:
+                  catalogue=None, cautions=None, describe=None) -> Services:
     """Services with the real dimfit modules wherever no replacement is given."""
     runner = ProcessRunner()
 
@@ -183,5 +185,6 @@ def make_services(*, evaluate=None, simulate=None, size=None, render_markdown=No
         catalogue=catalogue or _LazyModule("loads.catalogue"),
         cautions=cautions or default_cautions,
         shutdown=runner.shutdown,
+        describe=describe or _LazyModule("compat.describe"),
     )
     return services

@@ -94,7 +94,7 @@ ENDS = {"holding_current_ma": (10.0, 40.0), "latching_current_ma": (50.0, 80.0),
         "source_resistance_ohm": (0.1, 1.0), "source_inductance_uh": (100.0, 1000.0),
         "input_capacitance_nf": (22.0, 100.0), "bulk_capacitance_uf": (2.2, 10.0),
         "series_resistance_ohm": (4.7, 22.0), "start_voltage_v": (40.0, 80.0), "bleeder_ma": (0.0, 10.0),
-        "input_damping_ohm": (0.0, 220.0)}
+        "input_damping_ohm": (0.0, 220.0), "trip_current_a": (5.0, 15.0)}
 
 
 def rangeable_keys():

@@ -420,3 +420,77 @@ async def test_a_failed_export_names_the_target_file_not_the_temporary_one(tmp_p
         await wait_for(pilot, lambda: any(n.title == "Not exported" for n in app._notifications))
         note = next(n for n in app._notifications if n.title == "Not exported")
         assert note.message.startswith(f"{target}: ") and ".tmp" not in note.message
+
+
+class FakeDescribe:
+    """Stands in for compat.describe: records the form's figures, returns a lamp with
+    one range (the estimate itself is tested in tests/compat/test_lamp_label.py)."""
+
+    def __init__(self) -> None:
+        self.calls: list[dict] = []
+
+    def lamp_from_label(self, **kwargs):
+        from loads.circuit import Range
+        from loads.driver import ElectronicDriver
+        self.calls.append(kwargs)
+        if kwargs.get("meter_pf", 0.5) > 0.9:
+            from loads.errors import InputError
+            raise InputError("no capacitor-input lamp draws this", key="power_factor")
+        lamp = ElectronicDriver(name="LED 9 W (from its label)", rated_power_w=kwargs["watts"],
+                                series_resistance_ohm=20.0, count=kwargs["count"])
+        return lamp, (Range("loads[1].series_resistance_ohm", "loads[1].series_resistance_ohm", 5.0, 35.0),), ["R 5–35 Ω"]
+
+
+@sync
+async def test_a_lamp_from_its_label_joins_the_circuit_with_its_ranges():
+    describe = FakeDescribe()
+    app = make_app()
+    app.services.describe = describe
+    async with app.run_test(size=(100, 34)) as pilot:
+        screen = await settled(pilot)
+        await select_part(pilot, "load:1")
+        await pilot.press("a")
+        await wait_for(pilot, lambda: isinstance(app.screen, PickerScreen))
+        assert app.screen.entries[-1][1] == "From the label…"           # beside the catalogue, last
+        await pilot.press("end", "enter")
+        from tui.label_forms import LampLabelScreen
+        await wait_for(pilot, lambda: isinstance(app.screen, LampLabelScreen))
+        form = app.screen
+        form.query_one("#f-watts", Input).value = "9 W"
+        form.query_one("#f-meter_pf", Input).value = "0.95"
+        form.query_one("#f-count", Input).value = "3"
+        await pilot.click("#add")
+        # a reading the model refuses: one line at the form, naming the reading in the trade's words
+        await wait_for(pilot, lambda: "Meter: power factor" in str(form.query_one("#label-error", Label).render()))
+        form.query_one("#f-meter_pf", Input).value = "0.5"
+        await pilot.click("#add")
+        await wait_for(pilot, lambda: isinstance(app.screen, CircuitScreen))
+        assert describe.calls[-1]["watts"] == 9.0 and describe.calls[-1]["meter_pf"] == 0.5
+        assert describe.calls[-1]["volts"] == 230.0 and describe.calls[-1]["count"] == 3
+        assert screen.circuit.loads[-1].name == "LED 9 W (from its label)" and screen.circuit.loads[-1].count == 3
+        # the range moved to the group's place in the circuit (the third group)
+        assert [r.path for r in screen.circuit.ranges] == ["loads[3].series_resistance_ohm"]
+        assert screen.query_one(CircuitOutline).current_key == "load:2"
+
+
+def test_ranges_follow_their_groups_and_go_when_edited_away():
+    # behaviour of our own: a range belongs to a group's value; the checks judge a
+    # range's ends, so a range the circuit no longer carries must not stay behind
+    import dataclasses
+
+    from loads.circuit import Range
+    from tests.tui.fakes import sample_circuit
+    from tui.circuit_screen import ranges_still_meant, renumbered
+    c = sample_circuit()
+    lamp = dataclasses.replace(c.loads[1], bleeder_a=0.005)
+    c = dataclasses.replace(c, loads=(c.loads[0], lamp, lamp), ranges=(
+        Range("loads[2].bleeder_a", "loads[2].bleeder_ma", 0.0, 0.01),
+        Range("loads[3].bleeder_a", "loads[3].bleeder_ma", 0.0, 0.01),
+        Range("dimmer.holding_current_a", "dimmer.holding_current_ma", 0.01, 0.04)))
+    assert ranges_still_meant(c) is c                          # every value at its midpoint
+    edited = dataclasses.replace(c, loads=(c.loads[0], dataclasses.replace(lamp, bleeder_a=0.002), lamp))
+    assert [r.path for r in ranges_still_meant(edited).ranges] == ["loads[3].bleeder_a", "dimmer.holding_current_a"]
+    # group 2 removed: its range goes, group 3's becomes group 2's
+    assert [r.path for r in renumbered(c.ranges, lambda i: i if i < 2 else (None if i == 2 else i - 1))] == [
+        "loads[2].bleeder_a", "dimmer.holding_current_a"]
+    assert renumbered(c.ranges, lambda i: i + 1)[1].file_key == "loads[4].bleeder_ma"
