@@ -7,7 +7,7 @@ import functools
 import time
 
 import pytest
-from textual.widgets import Input, Label
+from textual.widgets import Button, Input, Label
 
 from compat.report import Verdict
 from tests.tui.fakes import FakeEvaluator, FakeFiles, make_app
@@ -463,6 +463,8 @@ async def test_a_lamp_from_its_label_joins_the_circuit_with_its_ranges():
         # a reading the model refuses: one line at the form, naming the reading in the trade's words
         await wait_for(pilot, lambda: "Meter: power factor" in str(form.query_one("#label-error", Label).render()))
         form.query_one("#f-meter_pf", Input).value = "0.5"
+        # a button ignores clicks for the moment it shows as pressed (Textual's -active)
+        await wait_for(pilot, lambda: not form.query_one("#add", Button).has_class("-active"))
         await pilot.click("#add")
         await wait_for(pilot, lambda: isinstance(app.screen, CircuitScreen))
         assert describe.calls[-1]["watts"] == 9.0 and describe.calls[-1]["meter_pf"] == 0.5
