@@ -27,8 +27,9 @@ CASES = load_cases()
 # work; measured with `python -m tests.corpus_report --messages`), each with its cause as
 # far as it was traced (tests/data/corpus/README.md, "Where dimfit still disagrees").
 # Remove an entry when its case turns defensible (the strict xfail fails then).
-_TE_CUT = ("trailing edge at conduction below 90°: the drivers' bulk capacitors charge right up to the "
-           "turn-off, the switch cuts 14–23 A in the supply's inductance and the dimmer reaches its clamp")
+_TE_CUT = ("drivers that cannot read a trailing-edge phase (their buses hold the terminal above the detector's "
+           "level) draw full power through 27–36° of conduction at low settings; cutting the 18–40 A then flowing "
+           "in the supply's inductance leaves 16–77 W in the switch at its controlled slope (dissipation)")
 NOT_DEFENSIBLE_TODAY = {
     "fil-rcdiac-3x60w.toml": "the dimmer as written (250 kΩ pot, 100 nF, 32 V diode with 10 V snap-back) fires no "
                              "later than 104°: 15.7 % light at the bottom (a caution); with a 470 kΩ pot it dims to 1 %",
@@ -38,8 +39,9 @@ NOT_DEFENSIBLE_TODAY = {
                                             "re-fires the triac",
     "led-rcdiac-4x6w-correction.toml": "lamps without bleeder or damper: the ring after each firing drops the triac "
                                        "out and re-fires it (48 times in 6 half-cycles); the device does not cure it",
-    "drv-te-neutral-8x12w.toml": _TE_CUT + "; its 20 A trip acts at low settings",
-    "drv-277v-te-neutral-8x20w.toml": _TE_CUT + "; its 25 A trip acts at low settings",
+    "drv-te-neutral-8x12w.toml": _TE_CUT + "; its 20 A trip acts at 0.05 and, turned up from there, at every setting",
+    "drv-277v-te-neutral-8x20w.toml": _TE_CUT + "; its 25 A trip acts at 0.05 and, turned up from there, at every "
+                                                "setting",
     "brk-te-12x10w-b10.toml": _TE_CUT,
     "brk-te-15x10w-b10.toml": _TE_CUT,
     "brk-te-20x10w-c10.toml": _TE_CUT,
