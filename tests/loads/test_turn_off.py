@@ -148,3 +148,17 @@ def test_the_protection_trips_once_the_current_has_stayed_above_its_level_for_it
     expect = above_deg + math.degrees(W * delay_s) if delay_s < 600e-6 else 170.0
     # abs: the event location (0.1 µs = 0.002°)
     assert hc.extinction_angle_deg == pytest.approx(np.full(4, expect), abs=0.01)
+
+
+def test_trip_delay_is_read_in_microseconds_and_round_trips():
+    # the file key trip_delay_us (µs) is trip_delay_s inside; it survives write and read
+    import dataclasses
+
+    from loads import files
+    c = _circuit(20.0, 2e-3, 1000.0)
+    c = dataclasses.replace(c, dimmer=dataclasses.replace(c.dimmer, trip_delay_s=20e-6))
+    text = files.circuit_to_toml(c)
+    assert "trip_delay_us = 20" in text
+    again = files.parse_circuit(text, "written.toml")
+    assert again.dimmer.trip_delay_s == pytest.approx(20e-6, rel=1e-12)   # rel: float rounding of the unit
+    assert files.circuit_to_toml(again) == text
