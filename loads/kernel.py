@@ -872,10 +872,17 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                     changed = True
             elif S[SW_ON] == 1:
                 Q[T_TRIP] = np.inf      # back below the trip level within the delay
-            if S[SW_ON] == RAMPING and (S[CPOL] * y[ISW] <= 0.0 or abs(y[VD]) >= P[VCL]):
-                # the turn-off ends where the switch current reaches zero; where the
-                # slope reaches the clamp voltage first, the clamp takes the current over
+            if S[SW_ON] == RAMPING and abs(y[VD]) >= P[VCL]:
+                # the slope has reached the clamp voltage before the current stopped: the
+                # clamp takes the current over
                 _record_off(t, S, Q, HC, P, False, y, False)
+                changed = True
+            elif S[SW_ON] == RAMPING and S[CPOL] * y[ISW] <= 0.0:
+                # the turn-off ends where the switch current reaches zero; the located
+                # crossing leaves up to the event tolerance's worth of current past it,
+                # which is taken off (left in the line inductance with the switch open, it
+                # would need megavolts across the open paths and drive the clamp)
+                _record_off(t, S, Q, HC, P, True, y, False)
                 changed = True
             c = 0
             if S[SW_ON] == 0:
