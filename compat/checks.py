@@ -53,6 +53,10 @@ DISSIPATION_SHARE = 0.02
 # Engineering choice: a peak within 2 % of the clamp voltage means the clamp conducts
 # (the simulator holds the voltage at the clamp level while it does).
 CLAMP_REACHED = 0.98
+# From memory: disc varistors of the sizes fitted across wall dimmers (7–14 mm) are rated
+# for a mean power of about 0.25–0.6 W; a clamp is there for occasional mains surges, so
+# energy absorbed every half-cycle is judged against the small end.
+CLAMP_MEAN_POWER_W = 0.25
 # Engineering choice: symmetric firing into a transformer gives peaks equal within a few
 # per cent; a saturating core gives peaks several times larger in one polarity.  The
 # caution also starts when the settled DC reaches half the saturation headroom.
@@ -907,8 +911,31 @@ def check_dc_offset(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResult
                 sources=("TRADE",), safety=True, details=details)
 
 
+def clamp_power_w(circuit: Circuit, run: SettingRun) -> float:
+    """Mean power absorbed by the dimmer's clamp over the analysed half-cycles [W]."""
+    hc = run.half_cycles
+    if not len(hc):
+        return 0.0
+    return float(np.sum(hc.clamp_energy_j)) * 2.0 * circuit.supply.frequency_hz / len(hc)
+
+
+def turn_off_power_w(circuit: Circuit, run: SettingRun) -> float:
+    """Mean heat left in a trailing-edge switch by its turn-offs over the analysed
+    half-cycles [W] (the energy its voltage slope takes from the circuit)."""
+    hc = run.half_cycles
+    if not len(hc):
+        return 0.0
+    return float(np.sum(hc.turn_off_energy_j)) * 2.0 * circuit.supply.frequency_hz / len(hc)
+
+
 def check_turn_off_surge(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResult:
-    """Trailing edge interrupting an inductive current: dimmer voltage against the clamp."""
+    """Trailing edge interrupting a current: what reaches the clamp.  The switch turns off
+    at a controlled voltage slope and takes the line inductance's energy as heat (counted
+    in ``dissipation``); only an inductance whose current the slope cannot stop before the
+    clamp voltage (an iron-core transformer's) drives the clamp, every half-cycle.  Fails
+    where the clamp absorbs more than a varistor's mean rating, or where the sampled
+    voltage sits at the clamp (it conducts for a sample interval or more); a caution where
+    it absorbs less, or the voltage comes within 10 % of the clamp."""
     d = circuit.dimmer
     if d.edge is Edge.LEADING:
         return _na("turn-off-surge", "A leading-edge switch turns off at current zero and interrupts no current.",
@@ -916,18 +943,27 @@ def check_turn_off_surge(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckR
     if not runs:
         return _na("turn-off-surge", "No sweep was simulated.", safety=True)
     worst, peak = max(((r, float(np.max(np.abs(r.result.dimmer_v[r.span])))) for r in runs), key=lambda x: x[1])
+    w_clamp, p_clamp = max(((r, clamp_power_w(circuit, r)) for r in runs), key=lambda x: x[1])
     clamp = d.clamp_voltage_v
     m = _margin(peak, clamp)
-    details = {"worst_setting": worst.setting, "direction": worst.direction, "mains_peak_v": circuit.supply.peak_v}
+    details = {"worst_setting": worst.setting, "direction": worst.direction, "mains_peak_v": circuit.supply.peak_v,
+               "clamp_power_w": p_clamp, "clamp_power_limit_w": CLAMP_MEAN_POWER_W}
     inductive = any(load_character(g, circuit.supply.frequency_hz) == "inductive" for g in circuit.loads)
     remedy = ("Use a leading-edge dimmer for iron-core transformer loads." if inductive else
               "The current cut is the lamps' own surge in the wiring's inductance: put fewer capacitor-input lamps on this dimmer.")
-    if peak >= CLAMP_REACHED * clamp:
-        return _res("turn-off-surge", Status.FAIL, peak, clamp, "V", m,
-                    f"At {_fmt_setting(worst)} cutting the load current drives the dimmer to {peak:.0f} V, into its "
-                    f"{clamp:.0f} V clamp, every half-cycle.",
+    absorbed = (f"; its clamp absorbs {p_clamp:.2f} W on average at {_fmt_setting(w_clamp)}, against the "
+                f"{CLAMP_MEAN_POWER_W:.2f} W a varistor of this kind is rated for" if p_clamp > 0 else "")
+    if peak >= CLAMP_REACHED * clamp or p_clamp > CLAMP_MEAN_POWER_W:
+        worst = worst if peak >= CLAMP_REACHED * clamp else w_clamp
+        return _res("turn-off-surge", Status.FAIL, max(peak, CLAMP_REACHED * clamp), clamp, "V", min(m, 0.0),
+                    f"At {_fmt_setting(worst)} cutting the load current drives the dimmer into its "
+                    f"{clamp:.0f} V clamp every half-cycle{absorbed}.",
                     remedy=remedy,
                     sources=("TRADE",), safety=True, details=details)
+    if p_clamp > 0:
+        return _res("turn-off-surge", Status.CAUTION, max(peak, CLAMP_REACHED * clamp), clamp, "V", min(m, 0.0),
+                    f"At {_fmt_setting(w_clamp)} the turn-off reaches the dimmer's {clamp:.0f} V clamp{absorbed}.",
+                    remedy=remedy, sources=("TRADE",), safety=True, details=details)
     status = Status.CAUTION if peak > 0.9 * clamp else Status.PASS
     return _res("turn-off-surge", status, peak, clamp, "V", m,
                 f"The dimmer voltage peaks at {peak:.0f} V against its {clamp:.0f} V clamp.",
@@ -1162,19 +1198,30 @@ def switch_dissipation_w(circuit: Circuit, switch_a: np.ndarray) -> float:
     return float(np.mean(d.on_state_voltage_v * np.abs(i) + d.on_state_resistance_ohm * i ** 2))
 
 
+def dimmer_heat_w(circuit: Circuit, run: SettingRun) -> float:
+    """Mean heat in the dimmer at one setting [W]: the switch's conduction loss, the heat
+    its trailing-edge turn-offs leave in it and what its clamp absorbs."""
+    return (switch_dissipation_w(circuit, run.result.dimmer_a[run.span]) + turn_off_power_w(circuit, run)
+            + clamp_power_w(circuit, run))
+
+
 def check_dissipation(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResult:
-    """Heat in the dimmer (switch conduction loss) against its allowance (TRADE)."""
+    """Heat in the dimmer (switch conduction loss, trailing-edge turn-off and clamp
+    energy) against its allowance (TRADE)."""
     if not runs:
         return _na("dissipation", "No sweep was simulated.", safety=True)
     d = circuit.dimmer
     allowance = DISSIPATION_SHARE * d.rated_load_w * derating.derating_factor(d)
-    worst, p = max(((r, switch_dissipation_w(circuit, r.result.dimmer_a[r.span])) for r in runs), key=lambda x: x[1])
+    worst, p = max(((r, dimmer_heat_w(circuit, r)) for r in runs), key=lambda x: x[1])
     m = _margin(p, allowance)
-    details = {"worst_setting": worst.setting, "direction": worst.direction}
+    details = {"worst_setting": worst.setting, "direction": worst.direction,
+               "turn_off_w": turn_off_power_w(circuit, worst), "clamp_w": clamp_power_w(circuit, worst)}
     if p > allowance:
         return _res("dissipation", Status.FAIL, p, allowance, "W", m,
-                    f"The switch dissipates {p:.1f} W at {_fmt_setting(worst)}, more than the {allowance:.1f} W the "
-                    "dimmer box is built to shed.",
+                    f"The switch dissipates {p:.1f} W at {_fmt_setting(worst)}"
+                    + (f" ({details['turn_off_w'] + details['clamp_w']:.1f} W of it from cutting the current at each "
+                       "turn-off)" if details["turn_off_w"] + details["clamp_w"] > 0.05 * p else "")
+                    + f", more than the {allowance:.1f} W the dimmer box is built to shed.",
                     remedy="Use a dimmer with a higher rating or reduce the load.",
                     sources=("TRADE",), safety=True, details=details)
     return _res("dissipation", Status.PASS, p, allowance, "W", m,

@@ -45,11 +45,20 @@ Control:
   half-cycle – which is what makes the lamp snap on at a higher setting than the one
   at which it drops out.
 
-Trailing edge (reverse phase): the switch closes at the voltage zero and opens at the
-set angle whatever the current, ramping its current linearly to zero over
-``turn_off_time_s`` centred on that angle; an inductive load resists the ramp and drives
-the dimmer voltage up, to the clamp (V_clamp) if need be.  A current above ``trip_current_a``
-turns the switch off for the rest of the half-cycle, by the same ramp.  After the supply
+Trailing edge (reverse phase): the switch closes at the voltage zero and starts to open at
+the set angle whatever the current.  It opens as transistor dimmers do (common practice,
+from memory): its gate is discharged through a resistor, so the voltage across it rises
+at a controlled slope while the transistor, in its linear region, carries whatever
+current the circuit drives through it; the turn-off ends when that current has fallen to
+zero.  The slope is that of a rise from zero to the supply's peak voltage in
+``turn_off_time_s``.  The energy the turn-off takes from the line inductance and the
+supply is heat in the transistor.  Only where the slope reaches the clamp voltage
+(V_clamp) before the current has stopped (an inductance too large for the slope to
+stop its current, as an iron-core transformer's) does the clamp take the current over.
+A current above ``trip_current_a`` for ``trip_delay_s`` (the protection's response)
+turns the switch off for the rest of the half-cycle, at once (from memory: protection
+circuits pull the gate down hard, since a transistor held in its linear region at that
+current would fail), so the line inductance's current then goes to the clamp.  After the supply
 appears the switch first closes at the next zero crossing, and over ``soft_start_s`` the
 conduction angle is ramped from zero to its set value (sampled at the end of each
 half-cycle; 0: no soft start).
@@ -165,9 +174,12 @@ class Dimmer:
     self_supply_a: float = 0.0                # two-wire electronic dimmers: a few mA [trade]
     # trailing edge
     clamp_voltage_v: float = 400.0            # common practice, no source (a TVS above the 230 V mains peak)
-    turn_off_time_s: float = 50e-6            # common practice, no source: transistor dimmers ramp the current
-                                              # down over some tens of µs to limit interference
+    turn_off_time_s: float = 100e-6           # from memory: a trailing-edge dimmer's falling edge spans a few
+                                              # degrees of the mains cycle on an oscilloscope (~100–300 µs), slow
+                                              # to limit interference; the short end (engineering choice: more of
+                                              # an inductance's energy then reaches the clamp, not understated)
     trip_current_a: float = 20.0              # common practice, no source
+    trip_delay_s: float = 0.0                 # engineering choice: the protection acts at once
     soft_start_s: float = 0.05                # from memory: transistor dimmers bring the lamps up over a few
                                               # mains cycles to a fraction of a second at switch-on; the short
                                               # end (engineering choice: the surge is not understated)
@@ -206,6 +218,7 @@ class Dimmer:
         require(self.commutating_di_dt_a_per_s >= 0, "commutating_di_dt_a_per_s", self.commutating_di_dt_a_per_s,
                 "A/s must not be negative")
         require(0 <= self.turn_off_time_s <= 1e-3, "turn_off_time_s", self.turn_off_time_s, "s must be 0–1 ms")
+        require(0 <= self.trip_delay_s <= 1e-3, "trip_delay_s", self.trip_delay_s, "s must be 0–1 ms")
         require(0 <= self.triac_turn_off_time_s <= 1e-3, "triac_turn_off_time_s", self.triac_turn_off_time_s,
                 "s must be 0–1 ms")
         require(0 <= self.soft_start_s <= 5.0, "soft_start_s", self.soft_start_s, "s must be 0–5 s")

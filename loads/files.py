@@ -85,6 +85,7 @@ _FILE_UNIT: dict[str, str] = {
     "timing_capacitance_f": "nf",
     "snubber_capacitance_f": "nf",
     "turn_off_time_s": "us",
+    "trip_delay_s": "us",
     "triac_turn_off_time_s": "us",
     "commutating_di_dt_a_per_s": "a_per_ms",
     "input_capacitance_f": "nf",
@@ -173,6 +174,7 @@ PHYSICAL: dict[str, Physical] = {
     "clamp_voltage_v": Physical(50.0, 2000.0, 150.0, 1000.0),
     "turn_off_time_s": Physical(0.1, 1000.0, 5.0, 300.0, zero=True),  # µs
     "trip_current_a": Physical(0.1, 1000.0, 1.0, 100.0),
+    "trip_delay_s": Physical(0.0, 1000.0, 0.0, 100.0, zero=True),     # µs
     "soft_start_s": Physical(0.0, 5000.0, 0.0, 1000.0),              # ms
     "min_firing_angle_deg": Physical(0.0, 180.0, 0.0, 60.0),
     "max_firing_angle_deg": Physical(0.0, 180.0, 120.0, 180.0),

@@ -89,8 +89,10 @@ ISS = 22      # two-wire self-supply current [A]
 VCL = 23      # trailing-edge clamp voltage [V]
 RCL = 24      # clamp slope resistance [Ω]
 TRIP = 25     # trailing-edge protection trip current [A]
-TRAMP = 32    # trailing-edge turn-off ramp time [s]
+TRAMP = 32    # trailing-edge turn-off time: the dimmer voltage's rise to the supply peak [s]
 SOFT = 37     # trailing-edge soft-start time [s]
+SLOPE = 38    # trailing-edge turn-off: slope of the dimmer voltage, VPK / TRAMP [V/s] (0: opens at once)
+TRIPD = 39    # trailing-edge protection: time the current must stay above TRIP to trip it [s]
 # the dimmer's control
 ALPHA = 26    # phase controller's firing angle [rad]
 IGT = 10      # gate trigger current [A]
@@ -108,7 +110,7 @@ HMAX = 28     # largest step [s]
 RTOL = 29     # relative tolerance [1]
 EVTOL = 30    # event location tolerance [s]
 EARLY = 31    # a drop-out this far before the half-cycle's end is early [deg]
-N_P = 38
+N_P = 40
 
 # --- integer parameters IP[...] ----------------------------------------------------------
 EDGE = 0      # LEADING | TRAILING
@@ -140,10 +142,10 @@ CLAMP = 5     # trailing-edge clamp conducting: 0 | 1
 HCIDX = 6     # index of the current half-cycle record [1]
 FIRE_HC = 7   # half-cycle record of the conduction under way (−1: none) [1]
 TRIPPED = 8   # trailing-edge protection has tripped: 0 | 1
-CPOL = 9      # polarity of the conduction under way: +1 | −1
+CPOL = 9      # polarity of the conduction under way (of a trailing-edge turn-off too): +1 | −1
 REFIRED = 10  # the gate drive under way is a retriggering controller's re-fire: 0 | 1
 N_S = 11
-RAMPING = 2   # S[SW_ON] while a trailing-edge switch ramps its current down
+RAMPING = 2   # S[SW_ON] while a trailing-edge switch turns off (its voltage rising at SLOPE)
 CARRIED = 2   # S[LATCHED]: conducting on through a failed commutation
 DIPPING = 3   # S[LATCHED]: below I_H for less than the turn-off time, still conducting
 
@@ -153,14 +155,16 @@ GATE_END = 0     # end of the gate drive [s]
 T_FIRE = 1       # next phase-control firing [s] (inf: none)
 T_OFF = 2        # next trailing-edge turn-off [s] (inf: none)
 HC_START = 3     # start of the current half-cycle [s]
-RAMP_I0 = 4      # switch current where a turn-off ramp began [A]
-T_RAMP_END = 5   # end of that ramp [s] (inf: none)
+RAMP_I0 = 4      # switch current where a turn-off began (its sign: the polarity) [A]
+T_RAMP0 = 5      # when that turn-off began [s]
 DIDT = 6         # switch current's slope over the last step [A/s]
 T_DIP = 7        # when the current fell below I_H [s]
 T_DIP_END = 8    # when that dip has lasted the turn-off time [s]
 T_SYNC = 9       # the first supply zero crossing after the supply appeared [s] (−inf: long
                  # ago): a phase controller does nothing before it, a soft start ramps from it
-N_Q = 10
+RAMP_V0 = 10     # dimmer voltage where a turn-off began [V]
+T_TRIP = 11      # when a current above the trip level will have lasted the trip delay [s] (inf: none)
+N_Q = 12
 
 # --- half-cycle record columns HC[k, ...] --------------------------------------------------
 H_START = 0      # start (supply zero crossing) [s]
@@ -177,7 +181,9 @@ H_V2 = 10        # ∫ v_load² dt [V²s]
 H_I2 = 11        # ∫ i_line² dt [A²s]
 H_VI = 12        # ∫ v_load·i_line dt [J]
 H_I = 13         # ∫ i_line dt [A·s]
-N_H = 14
+H_E_OFF = 14     # ∫ v_dimmer·i_switch dt while the switch turns off: heat in the transistor [J]
+H_E_CLAMP = 15   # ∫ v_dimmer·i_clamp dt: energy absorbed by the clamp [J]
+N_H = 16
 
 # --- output columns OUT[k, ...] (each group's current [A], then its light state, follow) ---
 O_E = 0       # source EMF [V]
@@ -321,6 +327,14 @@ def _open_dimmer_voltage(y, isw, P, IP):
 
 
 @numba.njit(cache=True, _nrt=False)
+def _turn_off_voltage(t, P, Q):
+    """Voltage across a trailing-edge switch turning off: from where it began, rising at
+    the set slope in the direction of the current it carried."""
+    pol = 1.0 if Q[RAMP_I0] > 0.0 else -1.0
+    return Q[RAMP_V0] + pol * P[SLOPE] * (t - Q[T_RAMP0])
+
+
+@numba.njit(cache=True, _nrt=False)
 def _clamp_current(vd, P, S):
     c = S[CLAMP]
     if c == 0:
@@ -344,8 +358,10 @@ def residual(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F):
         # zero inside the linear part)
         F[ISW] = vd - P[VTD] * min(max(isw / max(P[IH], VT_SMOOTH_MIN_A), -1.0), 1.0) - P[RON] * isw
     elif S[SW_ON] == RAMPING:
-        # trailing-edge turn-off: the switch current is brought down linearly to zero
-        F[ISW] = Q[RAMP_I0] * (Q[T_RAMP_END] - t) / P[TRAMP] - isw
+        # trailing-edge turn-off: the gate drive makes the switch's voltage rise at a set
+        # slope; the switch carries whatever current the circuit then drives through it
+        # (in its linear region), until that current reaches zero
+        F[ISW] = vd - _turn_off_voltage(t, P, Q)
     else:
         F[ISW] = -isw
     isn = 0.0
@@ -384,7 +400,7 @@ def residual(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F):
 @numba.njit(cache=True, _nrt=False)
 def mass(P, IP, S, gk, gxo, gpo, gnp, GP, M):
     M[IL] = P[LS]
-    M[ISW] = P[LC] if (S[SW_ON] == 1 and P[LC] > 0.0) else 0.0
+    M[ISW] = P[LC] if (S[SW_ON] != 0 and P[LC] > 0.0) else 0.0
     M[VD] = 0.0
     M[VB] = P[CB]
     M[VSN] = P[CSN]
@@ -437,6 +453,10 @@ def guards(y, P, IP, S, gk, gxo, gpo, gnp, GP, g):
     else:
         if S[SW_ON] == 1:
             g[k] = isw - P[TRIP]
+            k += 1
+        elif S[SW_ON] == RAMPING:
+            # a turn-off ends where the switch current reaches zero
+            g[k] = S[CPOL] * y[ISW]
             k += 1
         g[k] = abs(y[VD]) - P[VCL]
         k += 1
@@ -701,12 +721,16 @@ def _record_off(t, S, Q, HC, P, chop, y, dropout):
 
 @numba.njit(cache=True, _nrt=False)
 def _start_turn_off(t, y, P, S, Q, HC):
-    """A trailing-edge switch starts turning off at t: its current ramps to zero over
-    the turn-off time (or, with none, it opens at once)."""
-    if P[TRAMP] > 0.0:
+    """A trailing-edge switch starts turning off at t: its voltage rises from where it is
+    at the set slope until its current has reached zero (or, with no slope or no
+    current, it opens at once)."""
+    Q[T_TRIP] = np.inf
+    if P[SLOPE] > 0.0 and y[ISW] != 0.0:
         S[SW_ON] = RAMPING
+        S[CPOL] = 1 if y[ISW] > 0.0 else -1
         Q[RAMP_I0] = y[ISW]
-        Q[T_RAMP_END] = t + P[TRAMP]
+        Q[RAMP_V0] = y[VD]
+        Q[T_RAMP0] = t
     else:
         _record_off(t, S, Q, HC, P, False, y, False)
 
@@ -851,14 +875,34 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                             changed = True
         else:
             if S[SW_ON] == 1 and abs(y[ISW]) >= P[TRIP]:
-                # overcurrent: the switch turns off as it does at its set angle, by the
-                # same current ramp (the line inductance's current goes to the clamp)
-                S[TRIPPED] = 1
-                Q[T_OFF] = np.inf
-                _start_turn_off(t, y, P, S, Q, HC)
+                # overcurrent: once it has lasted the protection's delay, the protection
+                # pulls the gate down at once (no slope: a transistor held in its linear
+                # region at that current would fail); the line inductance's current goes
+                # to the clamp
+                if P[TRIPD] > 0.0 and Q[T_TRIP] == np.inf:
+                    Q[T_TRIP] = t + P[TRIPD]
+                elif P[TRIPD] <= 0.0 or t >= Q[T_TRIP] - 1e-12:
+                    S[TRIPPED] = 1
+                    Q[T_OFF] = np.inf
+                    Q[T_TRIP] = np.inf
+                    _record_off(t, S, Q, HC, P, False, y, False)
+                    changed = True
+            elif S[SW_ON] == 1:
+                Q[T_TRIP] = np.inf      # back below the trip level within the delay
+            if S[SW_ON] == RAMPING and abs(y[VD]) >= P[VCL]:
+                # the slope has reached the clamp voltage before the current stopped: the
+                # clamp takes the current over
+                _record_off(t, S, Q, HC, P, False, y, False)
+                changed = True
+            elif S[SW_ON] == RAMPING and S[CPOL] * y[ISW] <= 0.0:
+                # the turn-off ends where the switch current reaches zero; the located
+                # crossing leaves up to the event tolerance's worth of current past it,
+                # which is taken off (left in the line inductance with the switch open, it
+                # would need megavolts across the open paths and drive the clamp)
+                _record_off(t, S, Q, HC, P, True, y, False)
                 changed = True
             c = 0
-            if S[SW_ON] != 1:
+            if S[SW_ON] == 0:
                 # the line current must go somewhere: where the open dimmer's other paths
                 # would need more than the clamp voltage to carry it, the clamp conducts
                 # an open switch carries nothing; right after it opened at once, y still
@@ -870,7 +914,7 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                     c = 1
                 elif vd < -P[VCL]:
                     c = -1
-                if c != 0 and c == -S[CLAMP] and S[SW_ON] == 0:
+                if c != 0 and c == -S[CLAMP]:
                     # the clamp's current has just reached zero with the switch open: a
                     # located crossing leaves the line current up to the event tolerance
                     # past it, a few µA that the open paths (the leakage alone: 100 MΩ)
@@ -878,9 +922,7 @@ def update_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP):
                     # releases to the open state with that overshoot taken off (the
                     # consistency step then relaxes the line current); it never hands over
                     # straight to the other polarity (that chattered at ~35 ns: ~10⁵
-                    # events per cycle with iron-core transformers).  Not while the switch
-                    # ramps its current down: there the hand-over is left as it was (the
-                    # rule made trip ramps chatter)
+                    # events per cycle with iron-core transformers)
                     c = 0
                     y[IL] = isw
                     if P[CSN] > 0.0:
@@ -980,6 +1022,7 @@ def _start_half_cycle(t, P, IP, S, Q, HC):
         HC[h, H_START] = t
     Q[HC_START] = t
     S[TRIPPED] = 0
+    Q[T_TRIP] = np.inf
     alpha_t = P[ALPHA] / P[OMEGA]
     if IP[EDGE] == LEADING and IP[CONTROL] == PHASE:
         Q[T_FIRE] = t + alpha_t if IP[NOFIRE] == 0 else np.inf
@@ -996,12 +1039,12 @@ def _trailing_off_time(t_hc, P, Q):
     """When a trailing-edge switch starts its turn-off in the half-cycle starting at t_hc:
     the set conduction time, ramped from zero over the soft start after the supply's
     first zero crossing (the ramp's value at the half-cycle's end, so no half-cycle is
-    skipped), and never shorter than the turn-off ramp itself."""
+    skipped), and never shorter than the turn-off time itself."""
     half = math.pi / P[OMEGA]
     cond = half - P[ALPHA] / P[OMEGA]
     if P[SOFT] > 0.0 and t_hc + half - Q[T_SYNC] < P[SOFT]:
         cond = max(cond * (t_hc + half - Q[T_SYNC]) / P[SOFT], P[TRAMP])
-    return t_hc + cond - 0.5 * P[TRAMP]
+    return t_hc + cond
 
 
 @numba.njit(cache=True, _nrt=False)
@@ -1059,6 +1102,12 @@ def _accumulate(t, h, o0, og, o1, P, IP, S, Q, HC, gk, gpo, gnp, GP):
             HC[k, H_PEAK_LINE] = abs(a[O_IL])
     if S[SW_ON] != 0:
         HC[k, H_ABOVE] += h * _share_above(abs(o0[O_ISW]), abs(og[O_ISW]), abs(o1[O_ISW]), P[IH])
+    if S[SW_ON] == RAMPING:
+        HC[k, H_E_OFF] += h * (W_0 * o0[O_VD] * o0[O_ISW] + W_G * og[O_VD] * og[O_ISW] + W_1 * o1[O_VD] * o1[O_ISW])
+    if S[CLAMP] != 0:
+        HC[k, H_E_CLAMP] += h * (W_0 * o0[O_VD] * _clamp_current(o0[O_VD], P, S)
+                                 + W_G * og[O_VD] * _clamp_current(og[O_VD], P, S)
+                                 + W_1 * o1[O_VD] * _clamp_current(o1[O_VD], P, S))
     for g in range(IP[NG]):
         if gk[g] == K_DRIVER:
             thr = GP[gpo[g] + _drv._VSENSE]
@@ -1302,8 +1351,8 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             t_ev = min(t_ev, Q[T_FIRE])
         if Q[T_OFF] > t:
             t_ev = min(t_ev, Q[T_OFF])
-        if S[SW_ON] == RAMPING:
-            t_ev = min(t_ev, Q[T_RAMP_END])
+        if S[SW_ON] == 1 and Q[T_TRIP] > t:
+            t_ev = min(t_ev, Q[T_TRIP])
         if S[LATCHED] == DIPPING and Q[T_DIP_END] > t:
             t_ev = min(t_ev, Q[T_DIP_END])
         h = min(h, P[HMAX], t_ev - t)
@@ -1401,7 +1450,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         o0[:] = o1
         counters[0] += 1
         # --- mode update: the events due at t by the clock (gate window end, trailing
-        # turn-off and its ramp's end, a dip's end, the half-cycle boundary, the firing),
+        # turn-off, a trip delay's end, a dip's end, the half-cycle boundary, the firing),
         # then the modes and a consistent state after any event
         timed = False
         if IP[CONTROL] == PHASE and IP[EDGE] == LEADING and S[GATE] != 0 and abs(t - Q[GATE_END]) < 1e-12:
@@ -1415,10 +1464,8 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             if S[SW_ON] == 1:
                 _start_turn_off(t, y, P, S, Q, HC)
             timed = True
-        if S[SW_ON] == RAMPING and abs(t - Q[T_RAMP_END]) < 1e-12:
-            Q[T_RAMP_END] = np.inf
-            _record_off(t - 0.5 * P[TRAMP], S, Q, HC, P, False, y, False)
-            timed = True
+        if S[SW_ON] == 1 and abs(t - Q[T_TRIP]) < 1e-12:
+            timed = True           # the overcurrent has lasted the trip delay (see update_modes)
         if S[LATCHED] == DIPPING and abs(t - Q[T_DIP_END]) < 1e-12:
             timed = True           # the dip has lasted the turn-off time (see update_modes)
         if abs(t - t_hb) < 1e-12:

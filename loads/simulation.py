@@ -60,7 +60,10 @@ class HalfCycles:
     load_rms_v, load_rms_a: at the load terminals [V], [A]; power_w: mean v·i into the loads [W];
     mean_current_a: mean line current (its sign shows a DC component) [A];
     light: mean light per group as a fraction of that group's rated light, shape
-    (n_half, n_groups) [1]."""
+    (n_half, n_groups) [1];
+    turn_off_energy_j: heat left in a trailing-edge switch by its turn-off, ∫ v·i dt while
+    its voltage rises at the set slope [J]; clamp_energy_j: energy the dimmer's clamp
+    absorbed [J] (both zeros where not given)."""
 
     start_s: np.ndarray
     polarity: np.ndarray
@@ -79,6 +82,13 @@ class HalfCycles:
     power_w: np.ndarray
     mean_current_a: np.ndarray
     light: np.ndarray
+    turn_off_energy_j: np.ndarray | None = None
+    clamp_energy_j: np.ndarray | None = None
+
+    def __post_init__(self) -> None:
+        for name in ("turn_off_energy_j", "clamp_energy_j"):
+            if getattr(self, name) is None:
+                object.__setattr__(self, name, np.zeros(len(self.start_s)))
 
     def __len__(self) -> int:
         return len(self.start_s)
@@ -314,6 +324,8 @@ def pack(circuit: Circuit, *, setting: float | None, firing_angle_deg: float | N
     P[K.EVTOL] = EVENT_TOL_S
     P[K.EARLY] = EARLY_DROPOUT_DEG
     P[K.TRAMP] = dim.turn_off_time_s if dim.edge is Edge.TRAILING else 0.0
+    P[K.SLOPE] = sup.peak_v / dim.turn_off_time_s if (dim.edge is Edge.TRAILING and dim.turn_off_time_s > 0) else 0.0
+    P[K.TRIPD] = dim.trip_delay_s if dim.edge is Edge.TRAILING else 0.0
     P[K.DIDTC] = dim.commutating_di_dt_a_per_s if dim.commutating_di_dt_a_per_s > 0 else np.inf
     P[K.TQ] = dim.triac_turn_off_time_s if dim.edge is Edge.LEADING else 0.0
     P[K.SOFT] = dim.soft_start_s if dim.edge is Edge.TRAILING else 0.0
@@ -386,7 +398,7 @@ def _cold_state(circuit: Circuit, pk: _Packed, t0: float, start_up: bool = False
     q = np.zeros(K.N_Q + 4 * len(pk.gk))
     q[K.T_FIRE] = np.inf
     q[K.T_OFF] = np.inf
-    q[K.T_RAMP_END] = np.inf
+    q[K.T_TRIP] = np.inf
     # start_up: the supply appears at t0 and a phase controller starts at the first zero
     # crossing; otherwise its control has long been running
     half = math.pi / pk.P[K.OMEGA]
@@ -497,7 +509,8 @@ def _half_cycles(hc: np.ndarray, t: np.ndarray, light: np.ndarray, kinds) -> Hal
                       time_above_holding_s=hc[:, K.H_ABOVE], peak_current_a=hc[:, K.H_PEAK_SW],
                       peak_line_current_a=hc[:, K.H_PEAK_LINE], i2t_a2s=hc[:, K.H_I2T],
                       line_i2t_a2s=hc[:, K.H_I2],
-                      load_rms_v=rms_v, load_rms_a=rms_a, power_w=power, mean_current_a=mean_i, light=lt)
+                      load_rms_v=rms_v, load_rms_a=rms_a, power_w=power, mean_current_a=mean_i, light=lt,
+                      turn_off_energy_j=hc[:, K.H_E_OFF], clamp_energy_j=hc[:, K.H_E_CLAMP])
 
 
 STABLE_ANGLE_DEG = 2.0     # engineering choice: firing angles that wander more than this are unstable

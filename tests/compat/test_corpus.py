@@ -27,15 +27,17 @@ CASES = load_cases()
 # work; measured with `python -m tests.corpus_report --messages`), each with its cause as
 # far as it was traced (tests/data/corpus/README.md, "Where dimfit still disagrees").
 # Remove an entry when its case turns defensible (the strict xfail fails then).
-_TE_CUT = ("trailing edge at conduction below 90°: the drivers' bulk capacitors charge right up to the "
-           "turn-off, the switch cuts 14–23 A in the supply's inductance and the dimmer reaches its clamp")
+_TE_CUT = ("drivers that cannot read a trailing-edge phase (their buses hold the terminal above the detector's "
+           "level) draw full power through 27–36° of conduction at low settings; cutting the 18–40 A then flowing "
+           "in the supply's inductance leaves 16–77 W in the switch at its controlled slope (dissipation)")
 NOT_DEFENSIBLE_TODAY = {
     "led-rcdiac-4x6w-correction.toml": "no bleeder: after the capacitive current's zero the lamps' input capacitors "
                                        "and the device's 220 nF hold the lamp voltage; the timing network then "
                                        "fires early in the next half-cycle whatever the knob (full light at 0.00) "
                                        "and the ring re-fires the triac; no damper or device size tried cures it",
-    "drv-te-neutral-8x12w.toml": _TE_CUT + "; its 20 A trip acts at low settings",
-    "drv-277v-te-neutral-8x20w.toml": _TE_CUT + "; its 25 A trip acts at low settings",
+    "drv-te-neutral-8x12w.toml": _TE_CUT + "; its 20 A trip acts at 0.05 and, turned up from there, at every setting",
+    "drv-277v-te-neutral-8x20w.toml": _TE_CUT + "; its 25 A trip acts at 0.05 and, turned up from there, at every "
+                                                "setting",
     "brk-te-12x10w-b10.toml": _TE_CUT,
     "brk-te-15x10w-b10.toml": _TE_CUT,
     "brk-te-20x10w-c10.toml": _TE_CUT,
