@@ -712,11 +712,16 @@ class Separation:
     expected_if_runner_up: float | None
     top_case: str
     runner_up_case: str
+    runner_up_at_least: bool = False      # expected_if_runner_up is the least it would read
 
     @property
     def separates(self) -> bool:
         a, b = self.expected_if_top, self.expected_if_runner_up
-        return a is not None and b is not None and abs(a - b) > self.reading.resolution
+        if a is None or b is None:
+            return False
+        if self.runner_up_at_least:
+            return a < b - self.reading.resolution
+        return abs(a - b) > self.reading.resolution
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -891,11 +896,41 @@ def separation(symptom: Symptom, cases: Sequence[Case], a: Ranked, b: Ranked, *,
         rd = READINGS[rid]
         va, vb = rd.value(ca), rd.value(cb)
         gap = abs(va - vb) / rd.resolution if va is not None and vb is not None else -1.0
-        found.append((gap, rd, va, vb))
-    pick = next((f for f in found[:2] if f[0] > 1.0), None) or max(found, key=lambda f: f[0])
-    _, rd, va, vb = pick
+        found.append((gap, rd, va, vb, cb.label, False))
+    # the runner-up's own telltale against the least it reads where it acts
+    rd = READINGS[TELLTALE[b.mechanism]]
+    bound, va = presence_bound(b.mechanism, symptom, ca), rd.value(ca)
+    if bound is not None and va is not None:
+        found.insert(2, ((bound - va) / rd.resolution, rd, va, bound, f"where {b.mechanism} would act", True))
+    pick = next((f for f in found[:3] if f[0] > 1.0), None) or max(found, key=lambda f: f[0])
+    _, rd, va, vb, label_b, at_least = pick
     return Separation(reading=rd, top=a.mechanism, runner_up=b.mechanism, expected_if_top=va, expected_if_runner_up=vb,
-                      top_case=ca.label, runner_up_case=cb.label)
+                      top_case=ca.label, runner_up_case=label_b, runner_up_at_least=at_least)
+
+
+# Engineering choice: a lamp that draws 90 % or more of its full current at a third of
+# the knob's travel is not dimming (a dimmable lamp draws well under that).
+NOT_DIMMING_RATIO = 0.9
+
+
+def presence_bound(m: Mechanism, symptom: Symptom, case: Case) -> float | None:
+    """The least value of ``m``'s telltale reading at which ``m`` acts in ``case``
+    (its check's limit expressed in the reading), or None where it has none."""
+    c = case.circuit
+    if m is Mechanism.OVERLOAD:
+        if symptom is Symptom.TRIPS_AT_SWITCH_ON:
+            return None if c.breaker is None else c.breaker.rated_current_a
+        return c.dimmer.rated_load_w * derating.derating_factor(c.dimmer) / c.supply.voltage_v
+    if m is Mechanism.CURRENT_SPIKES:
+        r = case.checks["repetitive-peak"]
+        crest = r.details.get("crest_factor")
+        return None if not crest or not r.value or r.limit is None else crest * r.limit / r.value
+    if m is Mechanism.DC_IN_CORE:
+        r = case.checks["dc-offset"]
+        return None if r.limit is None else (0.5 if symptom is Symptom.BUZZING else 1.0) * r.limit
+    if m is Mechanism.NOT_DIMMABLE:
+        return NOT_DIMMING_RATIO
+    return None
 
 
 def remedy(m: Mechanism, case: Case) -> str:

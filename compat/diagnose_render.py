@@ -26,8 +26,8 @@ def measurement_text(s: Separation) -> str:
                                   "them apart.")
     return (f"{rd.procedure} ({rd.tool}, resolution {rd.resolution:g}{' ' + rd.unit if rd.unit and not rd.unit.startswith('of ') else ''}). "
             f"Expect about {_unit(s.expected_if_top, rd.unit)} if this is the cause "
-            f"({s.top_case}), about {_unit(s.expected_if_runner_up, rd.unit)} if {s.runner_up} is "
-            f"({s.runner_up_case}).{tail}")
+            f"({s.top_case}), {'at least' if s.runner_up_at_least else 'about'} "
+            f"{_unit(s.expected_if_runner_up, rd.unit)} if {s.runner_up} is ({s.runner_up_case}).{tail}")
 
 
 # SI to the file's unit, by the key's suffix (as loads/files.py writes them).
