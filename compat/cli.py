@@ -605,7 +605,7 @@ def build_parser(open_app: Callable[[str | None], int | None] | None = None) -> 
                         "buzzing, trips-at-switch-on, runs-hot, lamps-fail-early")
     p.add_argument("--observed", action="append", metavar="KEY=VALUE",
                    help="what was seen or read: steady_down_to, comes_on_at (knob 0-1 or %%), off_voltage_v, "
-                        "full_current_a, crest_factor, dc_current_a, light_when_off=yes|no")
+                        "off_current_a, full_current_a, crest_factor, dc_current_a, light_when_off=yes|no")
     g = p.add_mutually_exclusive_group()
     g.add_argument("--json", action="store_true")
     g.add_argument("--markdown", action="store_true")

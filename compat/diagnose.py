@@ -381,6 +381,12 @@ def off_voltage_v(case: Case) -> float | None:
     return float(np.sqrt(np.mean(v ** 2)))
 
 
+def off_current_a(case: Case) -> float | None:
+    """The rms current in the lamp feed with the dimmer off [A]."""
+    r = case.checks.get("off-state")
+    return None if r is None else r.details.get("leakage_rms_a")
+
+
 def crest_factor(case: Case) -> float | None:
     r = case.checks.get("repetitive-peak")
     return None if r is None else r.details.get("crest_factor")
@@ -421,6 +427,12 @@ READINGS: dict[str, Reading] = {r.id: r for r in (
             unit="V", resolution=1.0,
             resolution_origin="from memory: a multimeter shows 0.1 V on its 600 V range; 1 V allows for a wandering reading",
             value=off_voltage_v),
+    Reading(id="off-current", tool="a leakage clamp meter (or a multimeter on AC mA in series with the lamp feed, "
+                                   "connected with the circuit isolated)",
+            procedure="With the dimmer off and the lamps in, measure the current in the lamp feed",
+            unit="A", resolution=0.0001,
+            resolution_origin="from memory: a leakage clamp meter shows 0.01 mA; 0.1 mA allows for a wandering reading",
+            value=off_current_a),
     Reading(id="full-current", tool="a true-rms clamp meter",
             procedure="With the knob at full, clamp the dimmer's switched live and read the current",
             unit="A", resolution=0.01, resolution_origin="from memory: a clamp meter's lowest AC range shows 0.01 A",
@@ -444,8 +456,8 @@ READINGS: dict[str, Reading] = {r.id: r for r in (
 # The reading that shows each mechanism best.
 TELLTALE: dict[Mechanism, str] = {
     Mechanism.LATCHING: "comes-on-at", Mechanism.HOLDING: "steady-down-to", Mechanism.PROTECTION: "crest-factor",
-    Mechanism.NOT_DIMMABLE: "dimmed-current-ratio", Mechanism.SNUBBER_LEAK: "off-voltage",
-    Mechanism.SELF_SUPPLY_LEAK: "off-voltage", Mechanism.TIMING_LEAK: "off-voltage",
+    Mechanism.NOT_DIMMABLE: "dimmed-current-ratio", Mechanism.SNUBBER_LEAK: "off-current",
+    Mechanism.SELF_SUPPLY_LEAK: "off-current", Mechanism.TIMING_LEAK: "off-current",
     Mechanism.OVERLOAD: "full-current", Mechanism.CURRENT_SPIKES: "crest-factor",
     Mechanism.SWITCH_ON_SURGE: "full-current", Mechanism.DC_IN_CORE: "dc-current",
     Mechanism.TURN_OFF_SPIKE: "full-current",
@@ -639,6 +651,7 @@ class Observation:
 # meter readings, whichever is larger).
 OBSERVATIONS = {
     "steady_down_to": "steady-down-to", "comes_on_at": "comes-on-at", "off_voltage_v": "off-voltage",
+    "off_current_a": "off-current",
     "full_current_a": "full-current", "crest_factor": "crest-factor", "dc_current_a": "dc-current",
     "light_when_off": None,
 }

@@ -16,7 +16,7 @@ SCORE_NOTE = ("score: the share of the simulated cases (the unknown inputs at th
 def _unit(v: float | None, unit: str) -> str:
     if v is None:
         return "—"
-    return f"{v:.2f}" + (f" {unit}" if unit and not unit.startswith("of ") else "")
+    return f"{v:.3g}" + (f" {unit}" if unit and not unit.startswith("of ") else "")
 
 
 def measurement_text(s: Separation) -> str:

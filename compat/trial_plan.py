@@ -82,8 +82,8 @@ def trial_plan(circuit: Circuit, report: Report, *, symptom: str | None = None, 
             continue
         unit = f" {s.reading.unit}" if s.reading.unit else ""
         steps.append(f"To tell {s.top} from {s.runner_up}: {s.reading.procedure} ({s.reading.tool}). "
-                     f"About {a:.2f}{unit} points to {s.top}; {'at least' if s.runner_up_at_least else 'about'} "
-                     f"{b:.2f}{unit} to {s.runner_up}"
+                     f"About {a:.3g}{unit} points to {s.top}; {'at least' if s.runner_up_at_least else 'about'} "
+                     f"{b:.3g}{unit} to {s.runner_up}"
                      + ("." if s.separates else " (too close to tell apart with this tool)."))
     steps.append("When done, isolate again before changing anything; local wiring rules and the makers' "
                  "instructions come first.")
