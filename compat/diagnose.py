@@ -561,7 +561,10 @@ def _protection_finding(symptom: Symptom, case: Case) -> Finding:
 def _check_finding(cid: str, case: Case, *, caution_counts: bool = False) -> Finding:
     r = case.checks[cid]
     bad = r.status is Status.FAIL or (caution_counts and r.status is Status.CAUTION)
-    return Finding(reproduces=bad, excess=_excess(r), text=f"{cid} is {r.status}: {r.message}")
+    # a check without a figure that passes says nothing of how close it came: it ranks
+    # below every mechanism with a figure
+    excess = _excess(r) if (bad or r.margin is not None) else -math.inf
+    return Finding(reproduces=bad, excess=excess, text=f"{cid} is {r.status}: {r.message}")
 
 
 def _leak_finding(m: Mechanism, symptom: Symptom, case: Case) -> Finding:
@@ -726,6 +729,8 @@ class Separation:
     top_case: str
     runner_up_case: str
     runner_up_at_least: bool = False      # expected_if_runner_up is the least it would read
+    runner_up_acts: bool = True           # False: the runner-up reproduces the symptom in no case; its
+                                          # reading is from the case where it comes closest
 
     @property
     def separates(self) -> bool:
@@ -771,7 +776,8 @@ class Diagnosis:
                     "unit": s.reading.unit, "resolution": s.reading.resolution,
                     "resolution_origin": s.reading.resolution_origin, "runner_up": str(s.runner_up),
                     "expected_if_cause": num(s.expected_if_top), "expected_if_runner_up": num(s.expected_if_runner_up),
-                    "separates": s.separates, "case": s.top_case, "runner_up_case": s.runner_up_case}
+                    "separates": s.separates, "case": s.top_case, "runner_up_case": s.runner_up_case,
+                    "runner_up_at_least": s.runner_up_at_least, "runner_up_acts": s.runner_up_acts}
 
         return {
             "schema": 1, "circuit": self.circuit, "symptom": str(self.symptom), "verdict": self.verdict,
@@ -903,22 +909,28 @@ def separation(symptom: Symptom, cases: Sequence[Case], a: Ranked, b: Ranked, *,
         else:
             cb = _run_case(f"{base.label}, without {a.mechanism}", base.key, fixed, base.values, symptom,
                            simulator or default_simulator(), cancel)
+    acts = finding(b.mechanism, symptom, cb).reproduces
     ids = [TELLTALE[a.mechanism], TELLTALE[b.mechanism]] + [TELLTALE[m] for m in CANDIDATES[symptom]]
-    found = []
+    found = []          # (gap in resolutions, reading, expected if a, if b, where b's figure is from, at least, b acts)
     for rid in dict.fromkeys(ids):
         rd = READINGS[rid]
         va, vb = rd.value(ca), rd.value(cb)
         gap = abs(va - vb) / rd.resolution if va is not None and vb is not None else -1.0
-        found.append((gap, rd, va, vb, cb.label, False))
+        found.append((gap, rd, va, vb, cb.label, False, acts))
     # the runner-up's own telltale against the least it reads where it acts
     rd = READINGS[TELLTALE[b.mechanism]]
     bound, va = presence_bound(b.mechanism, symptom, ca), rd.value(ca)
     if bound is not None and va is not None:
-        found.insert(2, ((bound - va) / rd.resolution, rd, va, bound, f"where {b.mechanism} would act", True))
-    pick = next((f for f in found[:3] if f[0] > 1.0), None) or max(found, key=lambda f: f[0])
-    _, rd, va, vb, label_b, at_least = pick
+        found.insert(2, ((bound - va) / rd.resolution, rd, va, bound, f"where {b.mechanism} would act", True, True))
+    # a reading from a case where the runner-up does not act says nothing of it: used
+    # only when no reading from a case (or a bound) where it acts tells them apart
+    pick = (next((f for f in found[:3] if f[0] > 1.0 and f[6]), None)
+            or max((f for f in found if f[6]), key=lambda f: f[0], default=None))
+    if pick is None or pick[0] <= 1.0:
+        pick = max(found, key=lambda f: f[0])
+    _, rd, va, vb, label_b, at_least, b_acts = pick
     return Separation(reading=rd, top=a.mechanism, runner_up=b.mechanism, expected_if_top=va, expected_if_runner_up=vb,
-                      top_case=ca.label, runner_up_case=label_b, runner_up_at_least=at_least)
+                      top_case=ca.label, runner_up_case=label_b, runner_up_at_least=at_least, runner_up_acts=b_acts)
 
 
 # Engineering choice: a lamp that draws 90 % or more of its full current at a third of

@@ -27,7 +27,9 @@ def measurement_text(s: Separation) -> str:
     return (f"{rd.procedure} ({rd.tool}, resolution {rd.resolution:g}{' ' + rd.unit if rd.unit and not rd.unit.startswith('of ') else ''}). "
             f"Expect about {_unit(s.expected_if_top, rd.unit)} if this is the cause "
             f"({s.top_case}), {'at least' if s.runner_up_at_least else 'about'} "
-            f"{_unit(s.expected_if_runner_up, rd.unit)} if {s.runner_up} is ({s.runner_up_case}).{tail}")
+            f"{_unit(s.expected_if_runner_up, rd.unit)} if {s.runner_up} is ({s.runner_up_case})."
+            + ("" if s.runner_up_acts else f" ({s.runner_up} reproduces the symptom in no case: that is the reading "
+                                           "where it comes closest.)") + tail)
 
 
 # SI to the file's unit, by the key's suffix (as loads/files.py writes them).
