@@ -6,16 +6,20 @@ runner-up, the remedies, the trial plan and the safety cautions.
 """
 from __future__ import annotations
 
-from compat.diagnose import MECHANISM_TEXT, SYMPTOM_TEXT, Diagnosis, Separation
-from compat.render import _wrap
+from compat.diagnose import MECHANISM_TEXT, Diagnosis, Separation
+from compat.symptoms import SYMPTOM_TEXT
+from compat.render import _wrap as _wrap80
 
 SCORE_NOTE = ("score: the share of the simulated cases (the unknown inputs at their ends and midpoints, after the "
               "observations) in which the mechanism reproduces the symptom.")
 
 
 def _unit(v: float | None, unit: str) -> str:
+    """A reading as the tool shows it: currents below 0.1 A in mA."""
     if v is None:
         return "—"
+    if unit == "A" and abs(v) < 0.1:
+        return f"{1000 * v:.3g} mA"
     return f"{v:.3g}" + (f" {unit}" if unit and not unit.startswith("of ") else "")
 
 
@@ -24,7 +28,7 @@ def measurement_text(s: Separation) -> str:
     rd = s.reading
     tail = "" if s.separates else (" These differ by no more than the tool's resolution: this reading does not tell "
                                   "them apart.")
-    return (f"{rd.procedure} ({rd.tool}, resolution {rd.resolution:g}{' ' + rd.unit if rd.unit and not rd.unit.startswith('of ') else ''}). "
+    return (f"{rd.procedure} ({rd.tool}, resolution {_unit(rd.resolution, rd.unit)}). "
             f"Expect about {_unit(s.expected_if_top, rd.unit)} if this is the cause "
             f"({s.top_case}), {'at least' if s.runner_up_at_least else 'about'} "
             f"{_unit(s.expected_if_runner_up, rd.unit)} if {s.runner_up} is ({s.runner_up_case})."
@@ -54,8 +58,12 @@ def _unknown_lines(d: Diagnosis) -> list[str]:
     return out
 
 
-def render_diagnosis(d: Diagnosis) -> str:
-    """Plain text for a terminal."""
+def render_diagnosis(d: Diagnosis, *, wrap: bool = True) -> str:
+    """Plain text for a terminal, wrapped at the table's 80 columns (``wrap=False``:
+    one line per item, for a window that wraps its own text)."""
+    def _wrap(text: str, first: str, rest: str | None = None) -> list[str]:
+        return _wrap80(text, first, rest) if wrap else [first + text]
+
     lines = [d.circuit, f"Symptom: {SYMPTOM_TEXT[d.symptom]} ({d.symptom})",
              f"Cases simulated: {d.cases_run}; kept after the observations: {len(d.cases_kept)}", ""]
     if d.unknowns:
@@ -119,3 +127,11 @@ def render_diagnosis_markdown(d: Diagnosis) -> str:
     out += ["## Trial on site", ""] + [s for s in d.trial_plan] + [""]
     out += ["## Cautions", ""] + [f"- {t}" for t in d.cautions] + [""]
     return "\n".join(out)
+
+
+def diagnose_text(circuit, symptom: str, *, progress=None, cancel=None) -> str:
+    """``compat.diagnose.diagnose`` rendered as text (what the app shows: a string
+    crosses from its worker process whole)."""
+    from compat.diagnose import diagnose
+
+    return render_diagnosis(diagnose(circuit, symptom, progress=progress, cancel=cancel), wrap=False)

@@ -80,7 +80,9 @@ def trial_plan(circuit: Circuit, report: Report, *, symptom: str | None = None, 
         a, b = s.expected_if_top, s.expected_if_runner_up
         if a is None or b is None:
             continue
-        unit = f" {s.reading.unit}" if s.reading.unit else ""
+        unit = f" {s.reading.unit}" if s.reading.unit and not s.reading.unit.startswith("of ") else ""
+        if s.reading.unit == "A" and max(abs(a), abs(b)) < 0.1:
+            a, b, unit = 1000 * a, 1000 * b, " mA"
         steps.append(f"To tell {s.top} from {s.runner_up}: {s.reading.procedure} ({s.reading.tool}). "
                      f"About {a:.3g}{unit} points to {s.top}; {'at least' if s.runner_up_at_least else 'about'} "
                      f"{b:.3g}{unit} to {s.runner_up}"

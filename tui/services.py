@@ -147,7 +147,8 @@ class Services:
     simulate(circuit, setting=..., cycles=..., start=...) -> SimResult;
     size(circuit) -> dict; render_markdown(report, circuit) -> str;
     files: read_circuit, write_circuit, save_profile, list_profiles, read_profile;
-    catalogue: list_archetypes, demo_circuit; cautions() -> tuple[str, ...]."""
+    catalogue: list_archetypes, demo_circuit; cautions() -> tuple[str, ...];
+    diagnose(circuit, symptom, cancel=None) -> str (the text of ``dimfit diagnose``)."""
 
     evaluate: Callable[..., Any]
     simulate: Callable[..., Any]
@@ -157,10 +158,11 @@ class Services:
     catalogue: Any
     cautions: Callable[[], tuple[str, ...]]
     shutdown: Callable[[], None] = lambda: None
+    diagnose: Callable[..., str] | None = None
 
 
 def make_services(*, evaluate=None, simulate=None, size=None, render_markdown=None, files=None,
-                  catalogue=None, cautions=None) -> Services:
+                  catalogue=None, cautions=None, diagnose=None) -> Services:
     """Services with the real dimfit modules wherever no replacement is given."""
     runner = ProcessRunner()
 
@@ -174,6 +176,10 @@ def make_services(*, evaluate=None, simulate=None, size=None, render_markdown=No
     def real_size(circuit):
         return runner.call("compat.sizing", "size", circuit)
 
+    def real_diagnose(circuit, symptom, cancel=None):
+        return runner.call("compat.diagnose_render", "diagnose_text", circuit, symptom, cancel=cancel,
+                           with_progress=True)
+
     services = Services(
         evaluate=evaluate or real_evaluate,
         simulate=simulate or real_simulate,
@@ -183,5 +189,6 @@ def make_services(*, evaluate=None, simulate=None, size=None, render_markdown=No
         catalogue=catalogue or _LazyModule("loads.catalogue"),
         cautions=cautions or default_cautions,
         shutdown=runner.shutdown,
+        diagnose=diagnose or real_diagnose,
     )
     return services
