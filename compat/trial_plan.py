@@ -100,17 +100,25 @@ def _meanings(circuit: Circuit, bad: dict, lamp_w: float | None) -> list[str]:
         at = max((s for s in (_setting_of(c) for c in sw) if s is not None), default=None)
         where = f" above position {at:.2f}" if at is not None and at > 0 else ""
         deciding = ", ".join(sorted({c.deciding_input for c in sw if c.deciding_input}))
-        text = (f"If the lamps flicker, go out or come on late{where}, the dimmer's switch does not get the current "
-                "it needs from these lamps" + (f" ({deciding} is at its unfavourable end)" if deciding else "")
-                + "; if they stay steady down to the bottom, it does.")
-        if lamp_w is not None:
-            text += (f" With the {lamp_w:.0f} W trial lamp added the flicker should stop: then a load-correction "
-                     "device (`dimfit size`) or a filament lamp on the circuit cures it; if it does not stop, "
-                     "suspect the lamps, not the dimmer.")
+        turns = f" ({deciding} is at its unfavourable end)" if deciding else ""
+        if circuit.dimmer.edge is Edge.LEADING:
+            text = (f"If the lamps flicker, go out or come on late{where}, the dimmer's switch does not get the current "
+                    f"it needs from these lamps{turns}; if they stay steady down to the bottom, it does.")
+            if lamp_w is not None:
+                text += (f" With the {lamp_w:.0f} W trial lamp added the flicker should stop: then a load-correction "
+                         "device (`dimfit size`) or a filament lamp on the circuit cures it; if it does not stop, "
+                         "suspect the lamps, not the dimmer.")
+        else:
+            text = (f"If the lamps flicker or go out{where}, they do not run steadily on this dimmer there{turns}: "
+                    "tell the user where the usable range ends, or fit lamps made for trailing-edge dimmers; if they "
+                    "stay steady down to the bottom, the circuit is fine.")
         out.append(text)
     if "off-state" in bad:
-        out.append("Any glow or flash with the dimmer off is current leaking through the dimmer into the lamps: a "
-                   "load-correction device across the lamps, or a dimmer with a neutral connection, stops it.")
+        dec = bad["off-state"].deciding_input
+        out.append("Any glow or flash with the dimmer off is current leaking through the dimmer into the lamps"
+                   + (f" ({dec} is at its unfavourable end)" if dec else "")
+                   + ": a load-correction device across the lamps, or a dimmer with a neutral connection, stops it; "
+                   "none in a minute in the dark means the leakage is too small to see.")
     if "breaker" in bad and circuit.breaker is not None:
         out.append("A trip at switch-on is the lamps' surge reaching the breaker's magnetic release: split the lamps "
                    "over more circuits or choose lamps with a lower surge; a trip after running for minutes is "

@@ -51,3 +51,17 @@ def test_trial_lamp_fits_the_rating_left():
     steps = trial_plan(full, SITE)
     assert not any("trial load" in s for s in steps)
     assert steps[0].startswith("1. ") and steps[-1].startswith(f"{len(steps)}. ")
+
+
+def test_a_trailing_edge_trial_speaks_of_the_usable_range_not_of_holding_current():
+    # a trailing-edge switch needs no latching or holding current (TEXTBOOK_TRIAC, as the
+    # checks say), so the trial's meaning for flicker must not blame the switch's current
+    trailing = Circuit(name="bed", dimmer=Dimmer(edge="trailing", control="phase", wiring="with-neutral", rc_diac=None,
+                                                  choke_inductance_h=0.0),
+                       loads=(ElectronicDriver(name="LED retrofit", count=3, rated_power_w=7.0),))
+    flicker = CheckResult(id="flicker", status=Status.FAIL, value=40.0, limit=10.0, unit="%", margin=-3.0,
+                          message="Flickers.", details={"worst_setting": 0.2})
+    steps = trial_plan(trailing, Report(circuit="bed", verdict=Verdict.SITE_TEST_NEEDED, checks=(flicker,)))
+    text = " ".join(steps)
+    assert "usable range" in text and "above position 0.20" in text
+    assert "current it needs" not in text and "trial load" not in text
