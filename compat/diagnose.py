@@ -43,7 +43,7 @@ from compat.evaluate import (OFF_ANALYSED_CYCLES, OFF_CYCLES, OFF_SAMPLES_PER_CY
 from compat.report import CheckResult, Report, Status
 from compat.runs import Evidence
 from compat.symptoms import Symptom
-from compat.switch_on import default_simulator
+from compat.switch_on import breaker_max_counts, default_simulator
 from compat.verdict import attached_cautions, overall
 from loads.circuit import Circuit
 from loads.dimmer import Control, Edge, Wiring
@@ -962,6 +962,10 @@ def remedy(m: Mechanism, case: Case) -> str:
                                                i2t_a2s=b.details["i2t_a2s"], frequency_hz=c.supply.frequency_hz)
             if curve is None:
                 text += " No B, C or D curve at this rating is sure to hold the surge: split the lamps."
+            if not b.details.get("max_counts"):
+                counts = breaker_max_counts(c)
+                text += " The breaker holds at most " + "; ".join(f"{n} × {k}" for k, n in counts.items()) + \
+                        " (the other groups as they are)."
         return text + " Never replace the breaker with a larger rating than the cable allows."
     if m is Mechanism.CURRENT_SPIKES:
         return checks["repetitive-peak"].remedy or checks["inrush"].remedy or "Fewer capacitor-input lamps per dimmer."
