@@ -166,11 +166,11 @@ WIDEN: dict[str, Widen] = {w.path: w for w in (
 # currents decide latching and holding; the self-supply the off-state; the loop
 # inductance the surge and the spikes at firing).
 WIDENED_FOR: dict[Symptom, tuple[str, ...]] = {
-    Symptom.FLICKER_LOW: ("dimmer.holding_current_a", "dimmer.latching_current_a"),
-    Symptom.FLICKER_ALL: ("dimmer.holding_current_a", "dimmer.latching_current_a"),
-    Symptom.DROPS_OUT: ("dimmer.holding_current_a", "dimmer.latching_current_a"),
+    Symptom.FLICKER_LOW: ("dimmer.holding_current_a", "dimmer.latching_current_a", "supply.source_inductance_h"),
+    Symptom.FLICKER_ALL: ("dimmer.holding_current_a", "dimmer.latching_current_a", "supply.source_inductance_h"),
+    Symptom.DROPS_OUT: ("dimmer.holding_current_a", "dimmer.latching_current_a", "supply.source_inductance_h"),
     Symptom.POPS_ON: ("dimmer.holding_current_a", "dimmer.latching_current_a"),
-    Symptom.DEAD_TRAVEL: ("dimmer.holding_current_a", "dimmer.latching_current_a"),
+    Symptom.DEAD_TRAVEL: ("dimmer.holding_current_a", "dimmer.latching_current_a", "supply.source_inductance_h"),
     Symptom.BUZZING: ("dimmer.holding_current_a", "dimmer.latching_current_a"),
     Symptom.GLOW_WHEN_OFF: ("dimmer.self_supply_a",),
     Symptom.FLASHES_WHEN_OFF: ("dimmer.self_supply_a",),
@@ -178,6 +178,18 @@ WIDENED_FOR: dict[Symptom, tuple[str, ...]] = {
     Symptom.RUNS_HOT: ("supply.source_inductance_h",),
     Symptom.LAMPS_FAIL_EARLY: ("supply.source_inductance_h",),
 }
+
+
+def _trailing(c: Circuit) -> bool:
+    return c.dimmer.edge is Edge.TRAILING
+
+
+# Inputs widened for a symptom only on some circuits (engineering choice: on a trailing
+# edge the flicker mechanism is the protection tripping on the lamps' charging peaks,
+# which the loop inductance sets; a leading edge's are the triac's currents).
+WIDEN_ONLY_IF: dict[tuple[Symptom, str], Callable[[Circuit], bool]] = {
+    (s, "supply.source_inductance_h"): _trailing
+    for s in (Symptom.FLICKER_LOW, Symptom.FLICKER_ALL, Symptom.DROPS_OUT, Symptom.DEAD_TRAVEL)}
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -208,7 +220,8 @@ def unknowns_for(circuit: Circuit, symptom: Symptom) -> tuple[Unknown, ...]:
     have = {u.path for u in out}
     for path in WIDENED_FOR[symptom]:
         w = WIDEN[path]
-        if path in have or not w.applies(circuit):
+        only_if = WIDEN_ONLY_IF.get((symptom, path), lambda c: True)
+        if path in have or not w.applies(circuit) or not only_if(circuit):
             continue
         out.append(Unknown(path=path, file_key=w.file_key, low=w.low, high=w.high, origin="widened", why=w.origin))
     return tuple(out)

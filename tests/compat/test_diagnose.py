@@ -46,6 +46,9 @@ SCENARIOS = [
      "from memory: installers put about 15 × 10 W LED drivers on a B10; 32 trip it at switch-on, 6 do not"),
     (Symptom.RUNS_HOT, "hot-le-5x100w.toml", Mechanism.OVERLOAD, "ok-le-2x60w-filament.toml",
      "common practice, no source: 500 W of filament on a 400 W dimmer overloads it; 120 W does not"),
+    (Symptom.FLICKER_ALL, "trip-te-8x9w-3a.toml", Mechanism.PROTECTION, "ok-te-2x9w-bleeder.toml",
+     "common practice, no source: a trailing-edge dimmer's electronic trip set below the charging peaks of its "
+     "capacitor-input lamps shuts it down every half-cycle, at every setting; two lamps stay well below it"),
     (Symptom.LAMPS_FAIL_EARLY, "nondim-te-4x9w.toml", Mechanism.NOT_DIMMABLE, "ok-le-2x60w-filament.toml",
      "lamp makers' instructions, common practice: lamps not made for dimming fail early on a dimmer"),
 ]
@@ -127,8 +130,10 @@ def test_unknowns_widen_only_what_the_file_does_not_give_as_a_range():
     us = unknowns_for(c, Symptom.FLICKER_LOW)
     assert [u.file_key for u in us] == ["dimmer.holding_current_ma", "dimmer.latching_current_ma"]
     assert all(u.origin == "widened" and u.why for u in us)
-    # a trailing-edge dimmer has no holding current to widen
-    assert unknowns_for(read_circuit(DATA / "nondim-te-4x9w.toml"), Symptom.FLICKER_LOW) == ()
+    # a trailing-edge dimmer has no holding current to widen; its flicker (the protection
+    # on the lamps' charging peaks) turns on the loop inductance instead
+    assert [u.file_key for u in unknowns_for(read_circuit(DATA / "nondim-te-4x9w.toml"), Symptom.FLICKER_LOW)] == [
+        "supply.source_inductance_uh"]
 
 
 def test_observations_parse_knob_positions_percent_and_yes_no():
