@@ -795,7 +795,7 @@ def rank(symptom: Symptom, cases: Sequence[Case]) -> list[Ranked]:
         out.append(Ranked(mechanism=m, score=len(yes) / len(cases) if cases else 0.0,
                           cases_reproducing=tuple(c.label for c, _ in yes), excess=best_f.excess,
                           evidence=best_f.text, best_case=best_c.label))
-    out.sort(key=lambda r: (-r.score, -r.excess, CANDIDATES[symptom].index(r.mechanism)))
+    out.sort(key=lambda r: (-r.score, not r.applies, -r.excess, CANDIDATES[symptom].index(r.mechanism)))
     return out
 
 
