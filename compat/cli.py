@@ -5,6 +5,7 @@
                          [--from cold|steady] [--json | --csv]
     dimfit sweep FILE [--points N] [--direction up|down|both] [--json]
     dimfit size FILE [--json]
+    dimfit diagnose FILE --symptom NAME [--observed KEY=VALUE ...] [--json | --markdown]
     dimfit demo [PATH]           write the demo circuit, then check it
     dimfit catalogue             the built-in archetypes
     dimfit selftest              compile the simulator now and check it on a closed form
@@ -60,7 +61,8 @@ EXIT_INTERRUPTED = 130
 # evaluations; three minutes leave room for a dozen ranges on a slow machine, and a
 # practitioner waiting longer is better told.  Sizing runs many evaluations.  The
 # environment variable DIMFIT_TIME_BUDGET_S (seconds) replaces every budget.
-TIME_BUDGET_S = {"check": 180.0, "demo": 180.0, "simulate": 120.0, "sweep": 180.0, "size": 600.0}
+TIME_BUDGET_S = {"check": 180.0, "demo": 180.0, "simulate": 120.0, "sweep": 180.0, "size": 600.0,
+                 "diagnose": 180.0}
 # How long an abandoned command's worker is given to notice the cancel event.
 CANCEL_GRACE_S = 0.5
 BUG_REPORT_STEM = "dimfit-bug-report"
@@ -468,6 +470,35 @@ def cmd_size(args) -> int:
     return 0
 
 
+# ------------------------------------------------------------------------ diagnose
+
+def cmd_diagnose(args) -> int:
+    """Exit 0: a modelled mechanism reproduces the symptom; 1: none does."""
+    from compat.diagnose import Symptom, parse_observation
+
+    observations = [parse_observation(t) for t in (args.observed or [])]
+    try:
+        symptom = Symptom(args.symptom)
+    except ValueError:
+        raise InputError(f"{args.symptom!r} is not a symptom; known: " + ", ".join(s.value for s in Symptom),
+                         key="--symptom") from None
+    circuit = _read(args.file)
+    try:
+        from compat.diagnose import diagnose
+        from compat.diagnose_render import render_diagnosis, render_diagnosis_markdown
+        _simulator()
+    except ImportError as err:
+        return _fail(f"the diagnosis is not available in this installation ({err})")
+    d = diagnose(circuit, symptom, observations=observations, progress=_progress("diagnosing"), cancel=_Run.cancel)
+    if args.json:
+        print(json.dumps(d.to_json(), indent=2, allow_nan=False, default=_json_default))
+    elif args.markdown:
+        _out(render_diagnosis_markdown(d))
+    else:
+        _out(render_diagnosis(d))
+    return 0 if d.possible else 1
+
+
 # ------------------------------------------------------------------ demo, catalogue
 
 def cmd_demo(args) -> int:
@@ -567,6 +598,19 @@ def build_parser(open_app: Callable[[str | None], int | None] | None = None) -> 
     p.add_argument("file")
     p.add_argument("--json", action="store_true")
     p.set_defaults(func=cmd_size)
+
+    p = sub.add_parser("diagnose", help="from a symptom seen on site to its likely cause, and a trial plan")
+    p.add_argument("file")
+    p.add_argument("--symptom", required=True, metavar="NAME",
+                   help="flicker-low, flicker-all, glow-when-off, flashes-when-off, drops-out, pops-on, dead-travel, "
+                        "buzzing, trips-at-switch-on, runs-hot, lamps-fail-early")
+    p.add_argument("--observed", action="append", metavar="KEY=VALUE",
+                   help="what was seen or read: steady_down_to, comes_on_at (knob 0-1 or %%), off_voltage_v, "
+                        "off_current_a, full_current_a, crest_factor, dc_current_a, light_when_off=yes|no")
+    g = p.add_mutually_exclusive_group()
+    g.add_argument("--json", action="store_true")
+    g.add_argument("--markdown", action="store_true")
+    p.set_defaults(func=cmd_diagnose)
 
     p = sub.add_parser("demo", help="write the demo circuit to a file and check it")
     p.add_argument("path", nargs="?", default=DEFAULT_DEMO_PATH, help=f"(default {DEFAULT_DEMO_PATH})")

@@ -124,6 +124,11 @@ def render_markdown(report: Report, circuit: Circuit) -> str:
     remedies = [c for c in report.checks if c.remedy and str(c.status) in ("fail", "caution")]
     if remedies:
         out += ["## Remedies", ""] + [f"- **{c.id}**: {c.remedy}" for c in remedies] + [""]
+    if str(report.verdict) == "site-test-needed":
+        from compat.trial_plan import trial_plan
+        out += ["## Trial on site", "",
+                "The verdict turns on an input nobody can read on the dimmer or the lamps; this trial settles it.", ""]
+        out += trial_plan(circuit, report) + [""]
     sources = sorted({k for c in report.checks for k in c.sources})
     if sources:
         out += ["## Sources", ""] + [f"- {t}" for t in sources_text(sources).split("; ")] + [""]

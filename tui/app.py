@@ -29,14 +29,14 @@ class DimfitApp(App):
     ENABLE_COMMAND_PALETTE = False
 
     def __init__(self, circuit=None, path: str | Path | None = None, *, evaluate=None, simulate=None, size=None,
-                 render_markdown=None, files=None, catalogue=None, cautions=None) -> None:
+                 render_markdown=None, files=None, catalogue=None, cautions=None, diagnose=None) -> None:
         """circuit: the circuit to open (None: read ``path``, or the built-in demo);
-        evaluate, simulate, size, render_markdown, files, catalogue, cautions:
+        evaluate, simulate, size, render_markdown, files, catalogue, cautions, diagnose:
         replacements for the real dimfit functions and modules (tests inject fakes)."""
         super().__init__()
         self.services = make_services(evaluate=evaluate, simulate=simulate, size=size,
                                       render_markdown=render_markdown, files=files, catalogue=catalogue,
-                                      cautions=cautions)
+                                      cautions=cautions, diagnose=diagnose)
         self.initial_circuit = circuit
         self.initial_path = Path(path) if path is not None else None
         self.startup_problem: str | None = None

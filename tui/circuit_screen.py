@@ -112,6 +112,7 @@ class CircuitScreen(Screen):
         Binding("f6", "curve", "Curve", priority=True),
         Binding("f7", "sizing", "Sizing", priority=True),
         Binding("f8", "cautions", "Cautions", priority=True),
+        Binding("f9", "diagnose", "Diagnose", priority=True, show=False),
         Binding("exclamation_mark", "cautions", "Cautions", show=False),
     ]
 
@@ -403,6 +404,10 @@ class CircuitScreen(Screen):
     def action_curve(self) -> None:
         from tui.curve_screen import CurveScreen
         self.app.push_screen(CurveScreen(self.report, stale=self.stale, cautions=self.cautions))
+
+    def action_diagnose(self) -> None:
+        from tui.diagnose_screen import DiagnoseScreen
+        self.app.push_screen(DiagnoseScreen(self.circuit, self.services.diagnose, self.cautions))
 
     def action_sizing(self) -> None:
         async def apply(device) -> None:

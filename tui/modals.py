@@ -25,6 +25,7 @@ HELP_TEXT = """\
   F3       circuit (edit)         F4       checks
   F5       waveforms              F6       dimming curve
   F7       sizing, correction     ctrl+q   quit (asks if unsaved)
+  F9       diagnose a symptom (flicker, glow, trips, hum...)
   ctrl+s   save                   F2       save as
   ctrl+o   open a file            ctrl+r   export report (Markdown)
   tab      next field             escape   close a window

@@ -148,7 +148,8 @@ class Services:
     size(circuit) -> dict; render_markdown(report, circuit) -> str;
     files: read_circuit, write_circuit, save_profile, list_profiles, read_profile;
     catalogue: list_archetypes, demo_circuit; cautions() -> tuple[str, ...];
-    describe: lamp_from_label, dimmer_from_faceplate (compat.describe; None: not offered)."""
+    describe: lamp_from_label, dimmer_from_faceplate (compat.describe; None: not offered);
+    diagnose(circuit, symptom, cancel=None) -> str (the text of ``dimfit diagnose``)."""
 
     evaluate: Callable[..., Any]
     simulate: Callable[..., Any]
@@ -159,10 +160,11 @@ class Services:
     cautions: Callable[[], tuple[str, ...]]
     shutdown: Callable[[], None] = lambda: None
     describe: Any = None
+    diagnose: Callable[..., str] | None = None
 
 
 def make_services(*, evaluate=None, simulate=None, size=None, render_markdown=None, files=None,
-                  catalogue=None, cautions=None, describe=None) -> Services:
+                  catalogue=None, cautions=None, describe=None, diagnose=None) -> Services:
     """Services with the real dimfit modules wherever no replacement is given."""
     runner = ProcessRunner()
 
@@ -176,6 +178,10 @@ def make_services(*, evaluate=None, simulate=None, size=None, render_markdown=No
     def real_size(circuit):
         return runner.call("compat.sizing", "size", circuit)
 
+    def real_diagnose(circuit, symptom, cancel=None):
+        return runner.call("compat.diagnose_render", "diagnose_text", circuit, symptom, cancel=cancel,
+                           with_progress=True)
+
     services = Services(
         evaluate=evaluate or real_evaluate,
         simulate=simulate or real_simulate,
@@ -186,5 +192,6 @@ def make_services(*, evaluate=None, simulate=None, size=None, render_markdown=No
         cautions=cautions or default_cautions,
         shutdown=runner.shutdown,
         describe=describe or _LazyModule("compat.describe"),
+        diagnose=diagnose or real_diagnose,
     )
     return services
