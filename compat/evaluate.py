@@ -199,20 +199,24 @@ TRIM_MAX_SETTING = 0.5
 UNTRIMMED_MAX_SETTING = 0.25
 
 
-def _sweep_checks(c: Circuit, down, up, w, bottom=()) -> dict[str, CheckResult]:
+def _sweep_checks(c: Circuit, down, up, w, bottom=(), only=None) -> dict[str, CheckResult]:
+    """The checks judged on the sweep's runs (``only``: just these ids)."""
     runs = tuple(down) + tuple(up)
-    return {"latching": ck.check_latching(c, runs, w), "holding": ck.check_holding(c, runs, w),
-            "repetitive-peak": ck.check_repetitive_peak(c, runs), "dc-offset": ck.check_dc_offset(c, runs),
-            "turn-off-surge": ck.check_turn_off_surge(c, runs),
-            "dimming-range": ck.check_dimming_range(c, down, up, w, bottom), "flicker": ck.check_flicker(c, runs, w),
-            "dissipation": ck.check_dissipation(c, runs)}
+    checks = {"latching": lambda: ck.check_latching(c, runs, w), "holding": lambda: ck.check_holding(c, runs, w),
+              "repetitive-peak": lambda: ck.check_repetitive_peak(c, runs),
+              "dc-offset": lambda: ck.check_dc_offset(c, runs),
+              "turn-off-surge": lambda: ck.check_turn_off_surge(c, runs),
+              "dimming-range": lambda: ck.check_dimming_range(c, down, up, w, bottom),
+              "flicker": lambda: ck.check_flicker(c, runs, w), "dissipation": lambda: ck.check_dissipation(c, runs)}
+    return {cid: judge_one() for cid, judge_one in checks.items() if only is None or cid in only}
 
 
 def usable_from(ev: Evidence, full: dict[str, CheckResult]) -> tuple[float, dict[str, CheckResult]] | None:
     """Where sweep checks fail only at the bottom of the travel: the lowest setting from
     which every sweep check passes or cautions, with the checks judged on the settings
     from there up; None if they fail higher up than ``TRIM_MAX_SETTING`` or not at all."""
-    if not any(r.status is Status.FAIL for r in full.values()):
+    failing = {cid for cid, r in full.items() if r.status is Status.FAIL}
+    if not failing:
         return None
     for s in sorted({r.setting for r in ev.down}):
         if s <= 0.0:
@@ -222,6 +226,10 @@ def usable_from(ev: Evidence, full: dict[str, CheckResult]) -> tuple[float, dict
         down = tuple(r for r in ev.down if r.setting >= s - 1e-9)
         up = tuple(r for r in ev.up if r.setting >= s - 1e-9)
         bottom = tuple(r for r in ev.bottom if r.setting >= s - 1e-9)
+        # the checks that failed first (the cheap test), then all of them once those pass
+        if any(r.status is Status.FAIL for r in
+               _sweep_checks(ev.circuit, down, up, ev.light_weights, bottom, only=failing).values()):
+            continue
         above = _sweep_checks(ev.circuit, down, up, ev.light_weights, bottom)
         if not any(r.status is Status.FAIL for r in above.values()):
             return s, above
