@@ -18,7 +18,7 @@ from pathlib import Path
 
 import pytest
 
-from compat.diagnose import (CANDIDATES, READINGS, Mechanism, Observation, Symptom, diagnose, finding,
+from compat.diagnose import (CANDIDATES, READINGS, Mechanism, Observation, Symptom, comes_on_at, diagnose, finding,
                              parse_observation, run_cases, unknowns_for)
 from loads.errors import InputError
 from loads.files import read_circuit
@@ -51,7 +51,28 @@ SCENARIOS = [
      "capacitor-input lamps shuts it down every half-cycle, at every setting; two lamps stay well below it"),
     (Symptom.LAMPS_FAIL_EARLY, "nondim-te-4x9w.toml", Mechanism.NOT_DIMMABLE, "ok-le-2x60w-filament.toml",
      "lamp makers' instructions, common practice: lamps not made for dimming fail early on a dimmer"),
+    # Written before diagnose was first run on these files.  Expected: the timing network
+    # reaches the trigger diode's 32 V from off only above about a third of the travel
+    # (closed form in the file: R ≤ 322 kΩ, setting ≥ 0.32, so on the 0.1 grid the lamps
+    # come on at 0.4), and once firing it fires lower going down; healthy twin: the
+    # 250 kΩ pot fires from off at the bottom (40.6 V > 32 V), so the lamps come on there.
+    (Symptom.POPS_ON, "pop-rcdiac-470k-3x8w.toml", Mechanism.TIMING_HYSTERESIS, "ok-rcdiac-2x60w-filament.toml",
+     "from memory: a single-RC trigger-diode dimmer snaps the lamps on turning up at a higher setting than the one "
+     "at which they go out turning down (the charge its capacitor starts each half-cycle with differs after a "
+     "half-cycle that fired); the wider the pot, the further up the knob the snap-on"),
+    # Expected: at the bottom the 500 kΩ pot leaves the timing capacitor at 20.5 V, short
+    # of 32 V (closed form in the file), so the dimmer does not fire over the bottom
+    # quarter or so of the travel, with filament lamps as with any; healthy twin as above.
+    (Symptom.DEAD_TRAVEL, "dead-rcdiac-500k-2x60w.toml", Mechanism.END_STOP, "ok-rcdiac-2x60w-filament.toml",
+     "common practice, no source: a rotary dimmer whose timing network cannot reach the trigger diode's breakover "
+     "at the bottom of the pot gives no light over that part of the knob, even to filament lamps"),
 ]
+
+# The reading expected to tell the dimmer's own trouble from the lamps' (engineering
+# expectation, written before the first run): a trial filament lamp in place of the
+# lamps shows the same late start / the same dark travel if the dimmer is the cause, and
+# comes on near the bottom if the lamps are.
+TRIAL_READING = {Symptom.POPS_ON: "trial-lamp-comes-on-at", Symptom.DEAD_TRAVEL: "trial-lamp-dark-travel"}
 
 
 def _ids(s):
@@ -150,3 +171,31 @@ def test_observations_parse_knob_positions_percent_and_yes_no():
 def test_every_reading_states_its_resolution_and_origin():
     for rd in READINGS.values():
         assert rd.resolution > 0 and rd.resolution_origin and rd.tool and rd.procedure
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("symptom", [Symptom.POPS_ON, Symptom.DEAD_TRAVEL], ids=str)
+def test_the_trial_filament_lamp_tells_the_dimmer_from_the_lamps(symptom):
+    faulty = next(s[1] for s in SCENARIOS if s[0] is symptom)
+    d = _diagnosis(faulty, symptom)
+    sep = d.separations[d.ranked[0].mechanism]
+    assert sep.reading.id == TRIAL_READING[symptom], sep
+    # the dimmer's own trouble: the trial lamp comes on at least a fifth of the travel
+    # up, or stays dark over at least DEAD_TRAVEL_MIN of it (the scenarios' closed forms
+    # put it at about a third and a quarter); if the runner-up were the cause it comes
+    # on / lights within the knob's resolution of the bottom
+    assert sep.expected_if_top >= 0.15, sep
+    assert sep.expected_if_runner_up <= 0.05 + 1e-9, sep
+
+
+@pytest.mark.slow
+def test_the_pop_on_scenario_shows_hysteresis_in_the_firing_itself():
+    # the dimmer fires going down at settings at which it did not fire going up (the
+    # timing network's hysteresis), and the lamps come on at 0.4 (closed form in the
+    # file: setting ≥ 0.32 on a grid of tenths); knob positions on the diagnosis grid
+    # are exact tenths, so equal to float rounding
+    (case,) = run_cases(read_circuit(DATA / "pop-rcdiac-470k-3x8w.toml"), (), symptom=Symptom.POPS_ON)
+    assert comes_on_at(case) == pytest.approx(0.4, rel=0.0, abs=1e-9)
+    f = finding(Mechanism.TIMING_HYSTERESIS, Symptom.POPS_ON, case)
+    assert f.reproduces and "fires going down" in f.text, f.text
+    assert not finding(Mechanism.LAMP_START, Symptom.POPS_ON, case).reproduces
