@@ -51,12 +51,23 @@ SCENARIOS = [
      "capacitor-input lamps shuts it down every half-cycle, at every setting; two lamps stay well below it"),
     (Symptom.LAMPS_FAIL_EARLY, "nondim-te-4x9w.toml", Mechanism.NOT_DIMMABLE, "ok-le-2x60w-filament.toml",
      "lamp makers' instructions, common practice: lamps not made for dimming fail early on a dimmer"),
-    # Written before diagnose was first run on these files.  Expected: the timing network
-    # reaches the trigger diode's 32 V from off only above about a third of the travel
-    # (closed form in the file: R ≤ 322 kΩ, setting ≥ 0.32, so on the 0.1 grid the lamps
-    # come on at 0.4), and once firing it fires lower going down; healthy twin: the
-    # 250 kΩ pot fires from off at the bottom (40.6 V > 32 V), so the lamps come on there.
-    (Symptom.POPS_ON, "pop-rcdiac-470k-3x8w.toml", Mechanism.TIMING_HYSTERESIS, "ok-rcdiac-2x60w-filament.toml",
+    # Written before diagnose was first run on this file: the timing network's hysteresis
+    # first, the lamps coming on at 0.4.  That expectation was WRONG, and is revised here
+    # after the run, with what was measured: with these LED lamps the dimmer fires turning
+    # up from 0.3 and turning down to 0.3, not below, on the 0.1 grid (no hysteresis a
+    # knob shows); the lamps come on late because the dimmer does not fire at all below
+    # 0.3 either way: its end stop.  (With the old diagnose, holding-drop-out "explained"
+    # it from a holding failure at 0.3, the setting where the lamps do come on.)
+    (Symptom.POPS_ON, "pop-rcdiac-470k-3x8w.toml", Mechanism.END_STOP, "ok-rcdiac-2x60w-filament.toml",
+     "common practice, no source: a rotary dimmer whose timing network cannot reach the trigger diode's breakover "
+     "over the bottom of the pot gives the lamps nothing there; they come on where it first fires"),
+    # Written before diagnose was first run on this file (but after seeing the sweep of
+    # the 500 kΩ filament circuit below fire turning down one tenth lower than turning
+    # up).  Expected: from off the timing network reaches 32 V only above about a third
+    # of the travel (closed form in the file: R ≤ 322 kΩ, setting ≥ 0.32, so on the 0.1
+    # grid the lamps come on at 0.4); once firing it fires lower going down; healthy
+    # twin: the 250 kΩ pot fires from off at the bottom (40.6 V > 32 V).
+    (Symptom.POPS_ON, "pop-rcdiac-470k-2x40w.toml", Mechanism.TIMING_HYSTERESIS, "ok-rcdiac-2x60w-filament.toml",
      "from memory: a single-RC trigger-diode dimmer snaps the lamps on turning up at a higher setting than the one "
      "at which they go out turning down (the charge its capacitor starts each half-cycle with differs after a "
      "half-cycle that fired); the wider the pot, the further up the knob the snap-on"),
@@ -72,11 +83,12 @@ SCENARIOS = [
 # expectation, written before the first run): a trial filament lamp in place of the
 # lamps shows the same late start / the same dark travel if the dimmer is the cause, and
 # comes on near the bottom if the lamps are.
-TRIAL_READING = {Symptom.POPS_ON: "trial-lamp-comes-on-at", Symptom.DEAD_TRAVEL: "trial-lamp-dark-travel"}
+TRIAL_READING = {Mechanism.TIMING_HYSTERESIS: "trial-lamp-comes-on-at", Mechanism.END_STOP: "trial-lamp-dark-travel"}
+TRIAL_SCENARIOS = [s for s in SCENARIOS if s[2] in TRIAL_READING]
 
 
 def _ids(s):
-    return f"{s[0]}"
+    return f"{s[0]}:{s[2]}"
 
 
 @lru_cache(maxsize=None)
@@ -174,12 +186,12 @@ def test_every_reading_states_its_resolution_and_origin():
 
 
 @pytest.mark.slow
-@pytest.mark.parametrize("symptom", [Symptom.POPS_ON, Symptom.DEAD_TRAVEL], ids=str)
-def test_the_trial_filament_lamp_tells_the_dimmer_from_the_lamps(symptom):
-    faulty = next(s[1] for s in SCENARIOS if s[0] is symptom)
+@pytest.mark.parametrize("scenario", TRIAL_SCENARIOS, ids=_ids)
+def test_the_trial_filament_lamp_tells_the_dimmer_from_the_lamps(scenario):
+    symptom, faulty, mechanism, _, _basis = scenario
     d = _diagnosis(faulty, symptom)
-    sep = d.separations[d.ranked[0].mechanism]
-    assert sep.reading.id == TRIAL_READING[symptom], sep
+    sep = d.separations[mechanism]
+    assert sep.reading.id == TRIAL_READING[mechanism], sep
     # the dimmer's own trouble: the trial lamp comes on at least a fifth of the travel
     # up, or stays dark over at least DEAD_TRAVEL_MIN of it (the scenarios' closed forms
     # put it at about a third and a quarter); if the runner-up were the cause it comes
@@ -194,7 +206,7 @@ def test_the_pop_on_scenario_shows_hysteresis_in_the_firing_itself():
     # timing network's hysteresis), and the lamps come on at 0.4 (closed form in the
     # file: setting ≥ 0.32 on a grid of tenths); knob positions on the diagnosis grid
     # are exact tenths, so equal to float rounding
-    (case,) = run_cases(read_circuit(DATA / "pop-rcdiac-470k-3x8w.toml"), (), symptom=Symptom.POPS_ON)
+    (case,) = run_cases(read_circuit(DATA / "pop-rcdiac-470k-2x40w.toml"), (), symptom=Symptom.POPS_ON)
     assert comes_on_at(case) == pytest.approx(0.4, rel=0.0, abs=1e-9)
     f = finding(Mechanism.TIMING_HYSTERESIS, Symptom.POPS_ON, case)
     assert f.reproduces and "fires going down" in f.text, f.text
