@@ -220,3 +220,15 @@ def test_the_pop_on_scenario_shows_hysteresis_in_the_firing_itself():
     f = finding(Mechanism.TIMING_HYSTERESIS, Symptom.POPS_ON, case)
     assert f.reproduces and "fires only if it fired before" in f.text, f.text
     assert not finding(Mechanism.END_STOP, Symptom.POPS_ON, case).reproduces
+
+
+@pytest.mark.slow
+def test_the_trial_plan_for_a_late_start_compares_both_ways_and_a_filament_lamp():
+    d = _diagnosis("pop-rcdiac-380k-2x40w.toml", Symptom.POPS_ON)
+    text = "\n".join(d.trial_plan)
+    assert "where they go out turning down" in text
+    assert "filament lamp in place of the lamps" in text
+    # the measurement that tells the hysteresis from the end stop is in the plan
+    assert "To tell timing-network-hysteresis from dimmer-end-stop" in text
+    # a symptom that is not a late start gets neither step
+    assert "in place of the lamps" not in "\n".join(_diagnosis("hot-le-5x100w.toml", Symptom.RUNS_HOT).trial_plan)
