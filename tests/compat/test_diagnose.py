@@ -71,14 +71,6 @@ SCENARIOS = [
      "from memory: a single-RC trigger-diode dimmer snaps the lamps on turning up at a higher setting than the one "
      "at which they go out turning down (the charge its capacitor starts each half-cycle with differs after a "
      "half-cycle that fired); the wider the pot, the further up the knob the snap-on"),
-    # Written before diagnose was first run on these files.  Expected: the lamps' own start
-    # (closed form in the file: the bus reaches 200 V only from setting 0.13, so on the
-    # 0.1 grid they come on at 0.2) ranks first, the phase controller firing and the
-    # bleeder keeping the triac on below it; healthy twin: the same lamps starting at 60 V
-    # come on at the bottom (325 V · sin 160° = 111 V).
-    (Symptom.POPS_ON, "pop-le-phase-3x8w-start200.toml", Mechanism.LAMP_START, "ok-le-phase-3x8w.toml",
-     "common practice, no source: lamps whose converter needs more than the bottom of the knob gives stay dark "
-     "there on any dimmer and come on only once the conduction is enough; a trial filament lamp glows earlier"),
     # Expected: at the bottom the 500 kΩ pot leaves the timing capacitor at 20.5 V, short
     # of 32 V (closed form in the file), so the dimmer does not fire over the bottom
     # quarter or so of the travel, with filament lamps as with any; healthy twin as above.
