@@ -9,7 +9,10 @@ every unknown, then each unknown at its low and its high end with the others at 
 midpoints, as ``compat.evaluate`` judges ranges) simulated once (``evaluate.gather``)
 and judged once (``evaluate.judge``): a mechanism reads the check results and their
 details, so nothing is simulated twice.  The off-state leakage paths are told apart by
-one extra off-state run per path.
+one extra off-state run per path; a late start (pops-on, dead travel) by where the
+dimmer starts and stops firing, the knob turned in finer steps there
+(``firing_thresholds``), and by a trial filament lamp in the lamps' place
+(``trial_circuit``).
 
 Score (documented in docs/design.md, Diagnosis): the share of the cases still
 plausible (after the observations) in which the mechanism reproduces the symptom, in
@@ -1256,9 +1259,10 @@ def remedy(m: Mechanism, case: Case) -> str:
         if c.dimmer.low_end_trim:
             return (f"Set the dimmer's low-end trim (its preset) so that {what}: raise it until a filament lamp "
                     "glows at the bottom of the knob, then check the lamps come on there from off.")
+        why = ("fires at the set angle whatever the half-cycle before did" if m is Mechanism.TIMING_HYSTERESIS
+               else "fires at every position of the knob")
         return (f"A dimmer with a low-end trim (preset), set so that {what}, or an electronic phase dimmer, whose "
-                "controller fires at the set angle whatever the half-cycle before did; otherwise tell the user "
-                "where on the knob the light begins.")
+                f"controller {why}; otherwise tell the user where on the knob the light begins.")
     if m is Mechanism.LAMP_START:
         if c.dimmer.low_end_trim:
             return ("Set the dimmer's low-end trim (its preset) up to the position at which the lamps come on from "
