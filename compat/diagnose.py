@@ -9,7 +9,10 @@ every unknown, then each unknown at its low and its high end with the others at 
 midpoints, as ``compat.evaluate`` judges ranges) simulated once (``evaluate.gather``)
 and judged once (``evaluate.judge``): a mechanism reads the check results and their
 details, so nothing is simulated twice.  The off-state leakage paths are told apart by
-one extra off-state run per path.
+one extra off-state run per path; a late start (pops-on, dead travel) by where the
+dimmer starts and stops firing, the knob turned in finer steps there
+(``firing_thresholds``), and by a trial filament lamp in the lamps' place
+(``trial_circuit``).
 
 Score (documented in docs/design.md, Diagnosis): the share of the cases still
 plausible (after the observations) in which the mechanism reproduces the symptom, in
@@ -38,8 +41,9 @@ import numpy as np
 
 from compat import breaker_band, derating, sizing
 from compat import checks as ck
-from compat.evaluate import (OFF_ANALYSED_CYCLES, OFF_CYCLES, OFF_SAMPLES_PER_CYCLE, combine, gather, judge,
-                             set_path)
+from compat.evaluate import (ANALYSED_CYCLES, CYCLES_PER_POINT, OFF_ANALYSED_CYCLES, OFF_CYCLES, OFF_SAMPLES_PER_CYCLE,
+                             SWEEP_SAMPLES_PER_CYCLE, combine, gather, judge, set_path, settings_grid, walk)
+from compat.runs import SettingRun
 from compat.report import CheckResult, Report, Status
 from compat.runs import Evidence
 from compat.symptoms import Symptom
@@ -48,7 +52,9 @@ from compat.verdict import attached_cautions, overall
 from loads.circuit import Circuit
 from loads.dimmer import Control, Edge, Wiring
 from loads.driver import ElectronicDriver
+from loads.electronic_transformer import ElectronicTransformer
 from loads.errors import InputError
+from loads.filament import Filament
 from loads.transformer import MagneticTransformer
 
 
@@ -67,6 +73,9 @@ class Mechanism(StrEnum):
     SWITCH_ON_SURGE = "switch-on-surge"          # the surge at switch-on against the breaker's magnetic release
     DC_IN_CORE = "dc-in-core"                    # uneven firing leaves DC in an iron-core transformer
     TURN_OFF_SPIKE = "turn-off-spike"            # a trailing edge cutting an inductive current drives the clamp
+    TIMING_HYSTERESIS = "timing-network-hysteresis"  # a rotary dimmer fires from off only well up the knob
+    END_STOP = "dimmer-end-stop"                 # the dimmer does not fire at all over the bottom of its travel
+    LAMP_START = "lamp-start"                    # the switch conducts but the lamps need more conduction to start
 
 
 MECHANISM_TEXT = {
@@ -82,6 +91,13 @@ MECHANISM_TEXT = {
     Mechanism.SWITCH_ON_SURGE: "the switch-on surge moves the breaker's magnetic release into its trip band",
     Mechanism.DC_IN_CORE: "uneven firing of the two polarities leaves DC in an iron-core transformer",
     Mechanism.TURN_OFF_SPIKE: "a trailing edge cutting an inductive current drives the dimmer into its clamp",
+    Mechanism.TIMING_HYSTERESIS: "the rotary dimmer's timing network fires from off only well up the knob: with no "
+                                 "firing in the half-cycle before, its capacitor starts from another charge and "
+                                 "reaches the trigger diode's breakover later than once it fires",
+    Mechanism.END_STOP: "the dimmer does not fire at all over the bottom of its travel (its timing network or end "
+                        "stop), whatever the lamps",
+    Mechanism.LAMP_START: "the dimmer's switch conducts, but the lamps need more conduction than it gives there "
+                          "to start (their converter's start voltage)",
 }
 
 # Which mechanisms can produce each symptom (common practice, no source: the causes an
@@ -92,8 +108,10 @@ CANDIDATES: dict[Symptom, tuple[Mechanism, ...]] = {
     Symptom.GLOW_WHEN_OFF: (Mechanism.SNUBBER_LEAK, Mechanism.SELF_SUPPLY_LEAK, Mechanism.TIMING_LEAK),
     Symptom.FLASHES_WHEN_OFF: (Mechanism.SNUBBER_LEAK, Mechanism.SELF_SUPPLY_LEAK, Mechanism.TIMING_LEAK),
     Symptom.DROPS_OUT: (Mechanism.HOLDING, Mechanism.LATCHING, Mechanism.PROTECTION),
-    Symptom.POPS_ON: (Mechanism.LATCHING, Mechanism.HOLDING),
-    Symptom.DEAD_TRAVEL: (Mechanism.LATCHING, Mechanism.HOLDING, Mechanism.PROTECTION),
+    Symptom.POPS_ON: (Mechanism.TIMING_HYSTERESIS, Mechanism.LAMP_START, Mechanism.END_STOP, Mechanism.LATCHING,
+                      Mechanism.HOLDING),
+    Symptom.DEAD_TRAVEL: (Mechanism.END_STOP, Mechanism.LAMP_START, Mechanism.LATCHING, Mechanism.HOLDING,
+                          Mechanism.PROTECTION),
     Symptom.BUZZING: (Mechanism.DC_IN_CORE, Mechanism.HOLDING, Mechanism.NOT_DIMMABLE, Mechanism.TURN_OFF_SPIKE),
     Symptom.TRIPS_AT_SWITCH_ON: (Mechanism.SWITCH_ON_SURGE, Mechanism.OVERLOAD),
     Symptom.RUNS_HOT: (Mechanism.OVERLOAD, Mechanism.CURRENT_SPIKES),
@@ -113,10 +131,18 @@ DEAD_TRAVEL_MIN = 0.15
 # Engineering choice: off-state flashes slower than 10 a second are seen one by one
 # (as compat.checks.check_off_state words them); faster ones run together as a glow.
 FLASH_MIN_PERIOD_S = 0.1
+# Engineering choice: the dimmer firing turning down at least a twentieth of the knob's
+# travel below where it first fires turning up is hysteresis an installer can see (the
+# knob's resolution by eye, as READINGS take it).
+HYSTERESIS_MIN = 0.05
 # Engineering choice: evaluate each case on 11 settings each way (as the sizing search,
 # compat.sizing.SEARCH_SETTINGS): enough to place a drop-out to a twentieth of the travel
 # after refine_drop_out, and quick enough for 1 + 2k cases.
 DIAGNOSE_SETTINGS = sizing.SEARCH_SETTINGS
+# The trial filament lamp put in place of the lamps to tell the dimmer's own trouble from
+# the lamps' (pops-on, dead travel): a 60 W lamp, the largest of the trial lamps an
+# electrician can buy anywhere (compat.trial_plan.TRIAL_LAMPS_W; common practice, no source).
+TRIAL_FILAMENT_W = 60.0
 # A path removed from the off-state circuit: a timing network's end-stop resistor
 # raised to this is open for the purpose (engineering choice: 1 GΩ passes 0.3 µA at 325 V).
 OPEN_RESISTANCE_OHM = 1e9
@@ -232,7 +258,9 @@ def unknowns_for(circuit: Circuit, symptom: Symptom) -> tuple[Unknown, ...]:
 @dataclass(frozen=True, slots=True, kw_only=True, eq=False)
 class Case:
     """One circuit of the diagnosis: label, the unknowns' values [SI], its evidence, its
-    check results by id, and the off-state result with each leakage path alone."""
+    check results by id, the off-state result with each leakage path alone, and (for
+    pops-on and dead travel) the walks up and down with a trial filament lamp in place of
+    the lamps (``trial_circuit``)."""
 
     label: str
     key: str
@@ -240,6 +268,10 @@ class Case:
     evidence: Evidence
     checks: dict
     off_paths: dict
+    trial_up: tuple = ()
+    trial_down: tuple = ()
+    fire_up: float | None = None
+    fire_down: float | None = None
 
     @property
     def circuit(self) -> Circuit:
@@ -279,6 +311,72 @@ def leakage_paths(circuit: Circuit) -> dict[Mechanism, Circuit]:
     if rc is not None:
         out[Mechanism.TIMING_LEAK] = only(snubber_capacitance_f=0.0, self_supply_a=0.0)
     return out
+
+
+def trial_circuit(circuit: Circuit) -> Circuit:
+    """The circuit with its lamps replaced by one trial filament lamp
+    (``TRIAL_FILAMENT_W``): what the dimmer does with the load it was made for."""
+    lamp = Filament(name="trial filament lamp", count=1, rated_power_w=TRIAL_FILAMENT_W,
+                    rated_voltage_v=float(circuit.supply.voltage_v))
+    return dataclasses.replace(circuit, loads=(lamp,), ranges=())
+
+
+# Engineering choice: where the dimmer starts or stops firing between two settings of the
+# sweep, the knob is turned on in eighths of a step (0.0125 of the travel with 11
+# settings, a quarter of the knob's resolution), the circuit's state carried.
+FIRE_STEPS = 8
+
+
+def _turn(circuit: Circuit, run: SettingRun, settings, sim, cancel=None) -> list[SettingRun]:
+    """The knob turned on from ``run`` through ``settings``, its state carried."""
+    weights = sim.reference_light_weights(circuit)
+    wsum = float(np.sum(weights))
+    out, state = [], run.result.final_state
+    for s in settings:
+        if cancel is not None and cancel.is_set():
+            from compat.evaluate import Cancelled
+            raise Cancelled()
+        res = sim.simulate(circuit, setting=s, cycles=CYCLES_PER_POINT, start=state,
+                           samples_per_cycle=SWEEP_SAMPLES_PER_CYCLE, settle_lamps=True)
+        state = res.final_state
+        point = sim.sweep_point(res, run.direction, s, ANALYSED_CYCLES, weights, wsum)
+        out.append(SettingRun(direction=run.direction, setting=s, result=res, analysed_cycles=ANALYSED_CYCLES,
+                              point=point))
+    return out
+
+
+def firing_thresholds(circuit: Circuit, ev: Evidence, sim, cancel=None) -> tuple[float | None, float | None]:
+    """Turning up from off, the first setting at which the dimmer fires; turning down from
+    full, the last at which it still fires (0: it fires at the bottom) [1].  Between the
+    sweep's settings the knob is turned on in ``FIRE_STEPS`` steps.  None where it never
+    fires that way."""
+    def first_change(runs, fired_first: bool):
+        for prev, nxt in zip(runs, runs[1:]):
+            if _triggered(prev) == fired_first and _triggered(nxt) != fired_first:
+                return prev, nxt
+        return None
+
+    up, down = list(ev.up), list(ev.down)
+    fire_up = next((r.setting for r in up if _triggered(r)), None)
+    pair = first_change(up, False)
+    if pair is not None:
+        a, b = pair
+        fine = _turn(circuit, a, [a.setting + (b.setting - a.setting) * k / FIRE_STEPS for k in range(1, FIRE_STEPS)],
+                     sim, cancel)
+        fire_up = next((r.setting for r in fine if _triggered(r)), b.setting)
+    fired_down = [r for r in down if _triggered(r)]
+    fire_down = min(r.setting for r in fired_down) if fired_down else None
+    pair = first_change(down, True)
+    if pair is not None:
+        a, b = pair
+        fine = _turn(circuit, a, [a.setting - (a.setting - b.setting) * k / FIRE_STEPS for k in range(1, FIRE_STEPS)],
+                     sim, cancel)
+        fire_down = a.setting
+        for r in fine:
+            if not _triggered(r):
+                break
+            fire_down = r.setting
+    return (None if fire_up is None else float(fire_up)), (None if fire_down is None else float(fire_down))
 
 
 def run_cases(circuit: Circuit, unknowns: Sequence[Unknown], *, symptom: Symptom, simulator=None,
@@ -345,6 +443,44 @@ def comes_on_at(case: Case) -> float | None:
     return float(min(lit)) if lit else None
 
 
+def _knob_share(settings, dark) -> float:
+    """The share of the knob's travel from the bottom up to the highest of ``dark`` (as
+    ``compat.checks.check_dimming_range`` counts dead travel: half a grid step past it) [1]."""
+    settings = sorted(settings)
+    if not dark or len(settings) < 2:
+        return 0.0
+    span = settings[-1] - settings[0]
+    step = span / (len(settings) - 1)
+    return float((max(dark) - settings[0] + step / 2) / span) if span > 0 else 0.0
+
+
+def trial_comes_on_at(case: Case) -> float | None:
+    """Turning up from off, the first setting at which the trial filament lamp (alone, in
+    place of the lamps) gives light [1]; None without a trial walk or if it never does."""
+    lit = [r.setting for r in case.trial_up if r.point is not None and r.point.light_fraction > ck.LIT_FRACTION]
+    return float(min(lit)) if lit else None
+
+
+def trial_dark_travel(case: Case) -> float | None:
+    """Turning down from full, the share of the knob's travel at the bottom over which the
+    trial filament lamp gives no light [1]; None without a trial walk."""
+    pts = [r.point for r in case.trial_down if r.point is not None]
+    if not pts:
+        return None
+    return _knob_share([p.setting for p in pts], [p.setting for p in pts if p.light_fraction <= ck.LIT_FRACTION])
+
+
+def on_off_gap(case: Case) -> float | None:
+    """How far up the knob the dimmer starts firing turning up from off, above where it
+    stops firing turning down from full [1]: its hysteresis, which on site shows as the
+    lamps coming on turning up well above where they go out turning down.  Taken from the
+    firing itself (``firing_thresholds``), not from the light on the sweep's grid, where a
+    filament's heat lags the knob; None where those were not found."""
+    if case.fire_up is None or case.fire_down is None:
+        return None
+    return float(case.fire_up - case.fire_down)
+
+
 def _full_point(case: Case):
     pts = _down_points(case)
     return max(pts, key=lambda p: p.setting) if pts else None
@@ -405,6 +541,25 @@ READINGS: dict[str, Reading] = {r.id: r for r in (
     Reading(id="comes-on-at", tool="your eyes and the knob",
             procedure="From off, turn the knob slowly up; note the position (0 off, 1 full) at which the lamps come on",
             unit="of the knob's travel", resolution=0.05, resolution_origin=KNOB, value=comes_on_at),
+    Reading(id="on-off-gap", tool="your eyes and the knob",
+            procedure="From off, turn the knob slowly up and note the position (0 off, 1 full) at which the lamps "
+                      "come on; then from full turn it slowly down and note where they go out; the first less the "
+                      "second", unit="of the knob's travel", resolution=0.05,
+            resolution_origin="engineering choice: two positions on the same knob, each judged by eye to a "
+                              "twentieth of its travel, compared directly",
+            value=on_off_gap),
+    Reading(id="trial-lamp-comes-on-at", tool=f"a {TRIAL_FILAMENT_W:.0f} W filament lamp as a trial load, your eyes "
+                                             "and the knob",
+            procedure=f"With the circuit isolated, connect a {TRIAL_FILAMENT_W:.0f} W filament lamp in place of the "
+                      "lamps; from off, turn the knob slowly up and note the position (0 off, 1 full) at which the "
+                      "filament lamp first glows", unit="of the knob's travel", resolution=0.05,
+            resolution_origin=KNOB, value=trial_comes_on_at),
+    Reading(id="trial-lamp-dark-travel", tool=f"a {TRIAL_FILAMENT_W:.0f} W filament lamp as a trial load, your eyes "
+                                             "and the knob",
+            procedure=f"With the circuit isolated, connect a {TRIAL_FILAMENT_W:.0f} W filament lamp in place of the "
+                      "lamps; from full, turn the knob slowly down to the bottom and note how much of the travel at "
+                      "the bottom (0 none, 1 all) leaves the filament lamp without any glow",
+            unit="of the knob's travel", resolution=0.05, resolution_origin=KNOB, value=trial_dark_travel),
     Reading(id="off-voltage", tool="a multimeter on AC volts",
             procedure="With the dimmer off and the lamps in, measure the voltage across the lamp terminals",
             unit="V", resolution=1.0,
@@ -444,6 +599,8 @@ TELLTALE: dict[Mechanism, str] = {
     Mechanism.OVERLOAD: "full-current", Mechanism.CURRENT_SPIKES: "crest-factor",
     Mechanism.SWITCH_ON_SURGE: "full-current", Mechanism.DC_IN_CORE: "dc-current",
     Mechanism.TURN_OFF_SPIKE: "full-current",
+    Mechanism.TIMING_HYSTERESIS: "on-off-gap", Mechanism.END_STOP: "trial-lamp-dark-travel",
+    Mechanism.LAMP_START: "trial-lamp-comes-on-at",
 }
 
 
@@ -502,7 +659,9 @@ def _switch_finding(m: Mechanism, symptom: Symptom, case: Case) -> Finding:
                              f"going down at {', '.join(f'{s:.2f}' for s in where) or 'no setting'}"))
     if symptom is Symptom.POPS_ON:
         on = comes_on_at(case)
-        where = _settings_in([p for p in failed if p[0] == "up"], 0.0, (on or 0.0) + 1e-9)
+        # only a failure where the lamps are still dark (below the setting at which they
+        # come on) keeps them from coming on; one at that setting is their start
+        where = _settings_in([p for p in failed if p[0] == "up"], 0.0, (on or 0.0) - 1e-6)
         ok = on is not None and on >= DROP_POP_MIN_SETTING and bool(where)
         return Finding(reproduces=ok, excess=(on or 0.0) if ok else 0.0,
                        text=(f"turning up, the lamps come on at setting {on:.2f}" if on is not None else
@@ -595,6 +754,79 @@ def _spikes_finding(case: Case) -> Finding:
     return Finding(reproduces=ok, excess=_excess(r), text=f"repetitive-peak is {r.status}: {r.message}")
 
 
+def _triggered(run) -> bool:
+    """The dimmer's switch was triggered in at least one analysed half-cycle."""
+    return bool(np.any(np.isfinite(run.half_cycles.firing_angle_deg)))
+
+
+def _conducts(run, edge: Edge) -> bool:
+    """Every analysed half-cycle fired, latched and (leading edge) held: the switch
+    gives the lamps their conduction regularly."""
+    hc = run.half_cycles
+    held = edge is Edge.TRAILING or not np.any(hc.early_dropouts)
+    return bool(len(hc) and np.all(np.isfinite(hc.firing_angle_deg)) and not np.any(hc.failed_latches) and held)
+
+
+def _dark(run) -> bool:
+    return run.point is None or run.point.light_fraction <= ck.LIT_FRACTION
+
+
+def _pos(x: float | None) -> str:
+    return "no setting" if x is None else f"{x:.2f}"
+
+
+def _fmt(settings) -> str:
+    return ", ".join(f"{s:.2f}" for s in settings) or "no setting"
+
+
+def _late_start_finding(m: Mechanism, symptom: Symptom, case: Case) -> Finding:
+    """The timing network's hysteresis, the dimmer's end stop and the lamps' start, read
+    from the sweeps: at the settings the lamps are dark (below where they come on turning
+    up; the dead travel turning down), does the switch fire at all, and does it conduct?"""
+    edge = case.circuit.dimmer.edge
+    if symptom is Symptom.POPS_ON:
+        on = comes_on_at(case)
+        if on is None or on < DROP_POP_MIN_SETTING:
+            return Finding(reproduces=False, excess=0.0,
+                           text=("turning up, the lamps never come on" if on is None else
+                                 f"turning up, the lamps come on at setting {on:.2f}, near the bottom"))
+        below = [r for r in case.evidence.up if r.setting < on - 1e-9]
+        up, down = case.fire_up, case.fire_down
+        if m is Mechanism.TIMING_HYSTERESIS:
+            hyst = (up - down) if (up is not None and down is not None) else 0.0
+            ok = up is not None and up >= DROP_POP_MIN_SETTING and hyst >= HYSTERESIS_MIN
+            return Finding(reproduces=ok, excess=hyst if ok else 0.0,
+                           text=(f"turning up, the lamps come on at setting {on:.2f}; from off the dimmer first fires "
+                                 f"at {_pos(up)}, and once firing it fires turning down to {_pos(down)}"
+                                 + (f": {hyst:.2f} of the travel where it fires only if it fired before" if ok else "")))
+        if m is Mechanism.END_STOP:
+            ok = down is None or down >= DROP_POP_MIN_SETTING
+            return Finding(reproduces=ok, excess=(on if down is None else down) if ok else 0.0,
+                           text=(f"turning up, the lamps come on at setting {on:.2f}; turning down, the dimmer "
+                                 + ("fires at no setting" if down is None else f"stops firing below {down:.2f}")))
+        where = [r.setting for r in below if _conducts(r, edge) and _dark(r)]
+        ok = bool(where)
+        return Finding(reproduces=ok, excess=on - min(where) if ok else 0.0,
+                       text=f"turning up, the lamps come on at setting {on:.2f}; below it the switch conducts in "
+                            f"every half-cycle with the lamps dark at {_fmt(where)}")
+    if symptom is Symptom.DEAD_TRAVEL:
+        dr = case.checks["dimming-range"].details
+        dead = float(dr.get("dead_travel") or 0.0)
+        settings = [r.setting for r in case.evidence.down]
+        dark = [r for r in case.evidence.down if _dark(r)]
+        if m is Mechanism.END_STOP:
+            where = [r.setting for r in dark if not _triggered(r)]
+            what = "the dimmer does not fire at all at"
+        else:
+            where = [r.setting for r in dark if _conducts(r, edge)]
+            what = "the switch conducts in every half-cycle with the lamps dark at"
+        share = _knob_share(settings, where)
+        ok = dead >= DEAD_TRAVEL_MIN and share >= DEAD_TRAVEL_MIN
+        return Finding(reproduces=ok, excess=share if ok else 0.0,
+                       text=f"{100 * dead:.0f} % of the travel is dark; {what} {_fmt(where)}")
+    return Finding(reproduces=False, excess=0.0, text=f"{m} does not produce this symptom")
+
+
 def finding(m: Mechanism, symptom: Symptom, case: Case) -> Finding:
     """Whether mechanism ``m`` reproduces ``symptom`` in ``case``."""
     if m in (Mechanism.LATCHING, Mechanism.HOLDING):
@@ -617,6 +849,8 @@ def finding(m: Mechanism, symptom: Symptom, case: Case) -> Finding:
         return _check_finding("dc-offset", case, caution_counts=(symptom is Symptom.BUZZING))
     if m is Mechanism.TURN_OFF_SPIKE:
         return _check_finding("turn-off-surge", case)
+    if m in (Mechanism.TIMING_HYSTERESIS, Mechanism.END_STOP, Mechanism.LAMP_START):
+        return _late_start_finding(m, symptom, case)
     raise ValueError(m)
 
 
@@ -816,6 +1050,12 @@ def applies(m: Mechanism, circuit: Circuit) -> str | None:
         return "a dimmer with a neutral takes its own supply from the neutral, not through the lamps"
     if m is Mechanism.TIMING_LEAK and d.control is not Control.RC_DIAC:
         return "the dimmer has no rc-diac timing network"
+    if m is Mechanism.TIMING_HYSTERESIS and d.control is not Control.RC_DIAC:
+        return ("the dimmer has no rc-diac timing network: its controller fires at the set angle whatever the "
+                "half-cycle before did")
+    if m is Mechanism.LAMP_START and not any(isinstance(g, (ElectronicDriver, ElectronicTransformer))
+                                             for g in circuit.loads):
+        return "no lamp with a converter that needs a start voltage (LED lamp, driver, electronic transformer)"
     if m in (Mechanism.SWITCH_ON_SURGE,) and circuit.breaker is None:
         return "no breaker is given for this circuit"
     return None
@@ -825,6 +1065,9 @@ def applies(m: Mechanism, circuit: Circuit) -> str | None:
 # show the circuit without a holding or latching failure (the low end of WIDEN's spans).
 CURED_HOLDING_A = 0.005
 CURED_LATCHING_A = 0.005
+# Engineering choice: a lamp with a low start, used to show the circuit without the
+# lamps' start mechanism (the driver model's default start, a fifth of the 230 V peak).
+CURED_START_V = 60.0
 
 
 def cured(m: Mechanism, circuit: Circuit) -> Circuit | None:
@@ -852,6 +1095,17 @@ def cured(m: Mechanism, circuit: Circuit) -> Circuit | None:
         return dataclasses.replace(circuit, loads=loads, ranges=())
     elif m is Mechanism.PROTECTION:
         new = dataclasses.replace(d, trip_current_a=10 * d.trip_current_a)
+    elif m in (Mechanism.TIMING_HYSTERESIS, Mechanism.END_STOP):
+        if d.control is not Control.RC_DIAC:
+            return None
+        new = dataclasses.replace(d, control=Control.PHASE)       # the cure offered: an electronic phase dimmer
+    elif m is Mechanism.LAMP_START:
+        starts = [g for g in circuit.loads if isinstance(g, ElectronicDriver) and g.start_voltage_v > CURED_START_V]
+        if not starts:
+            return None
+        loads = tuple(dataclasses.replace(g, start_voltage_v=CURED_START_V, stop_voltage_v=None) if g in starts else g
+                      for g in circuit.loads)
+        return dataclasses.replace(circuit, loads=loads, ranges=())
     else:
         return None
     return dataclasses.replace(circuit, dimmer=new, ranges=())
@@ -862,8 +1116,15 @@ def _run_case(label: str, key: str, circuit: Circuit, values: dict, symptom: Sym
     off_paths = {}
     if symptom in (Symptom.GLOW_WHEN_OFF, Symptom.FLASHES_WHEN_OFF):
         off_paths = {m: _off_result(pc, sim) for m, pc in leakage_paths(circuit).items()}
+    trial_up = trial_down = ()
+    fire_up = fire_down = None
+    if symptom in (Symptom.POPS_ON, Symptom.DEAD_TRAVEL):
+        trial, grid = trial_circuit(circuit), settings_grid(DIAGNOSE_SETTINGS)
+        trial_up = walk(trial, grid, "up", sim, cancel=cancel)
+        trial_down = walk(trial, grid, "down", sim, cancel=cancel)
+        fire_up, fire_down = firing_thresholds(circuit, ev, sim, cancel)
     return Case(label=label, key=key, values=values, evidence=ev, checks={r.id: r for r in judge(ev)},
-                off_paths=off_paths)
+                off_paths=off_paths, trial_up=trial_up, trial_down=trial_down, fire_up=fire_up, fire_down=fire_down)
 
 
 def separation(symptom: Symptom, cases: Sequence[Case], a: Ranked, b: Ranked, *, simulator=None,
@@ -910,7 +1171,9 @@ def separation(symptom: Symptom, cases: Sequence[Case], a: Ranked, b: Ranked, *,
     pick = (next((f for f in found[:3] if f[0] > 1.0 and f[6]), None)
             or max((f for f in found if f[6]), key=lambda f: f[0], default=None))
     if pick is None or pick[0] <= 1.0:
-        pick = max(found, key=lambda f: f[0])
+        # the runner-up acts nowhere: the cause's own telltale where it tells them apart
+        # (the reading made for it), else the reading that differs most
+        pick = found[0] if found[0][0] > 1.0 else max(found, key=lambda f: f[0])
     _, rd, va, vb, label_b, at_least, b_acts = pick
     return Separation(reading=rd, top=a.mechanism, runner_up=b.mechanism, expected_if_top=va, expected_if_runner_up=vb,
                       top_case=ca.label, runner_up_case=label_b, runner_up_at_least=at_least, runner_up_acts=b_acts)
@@ -990,6 +1253,22 @@ def remedy(m: Mechanism, case: Case) -> str:
         return checks["dimmable"].remedy or "Fit lamps marked dimmable, or a plain switch."
     if m is Mechanism.TURN_OFF_SPIKE:
         return checks["turn-off-surge"].remedy or "A leading-edge dimmer for iron-core transformers."
+    if m in (Mechanism.TIMING_HYSTERESIS, Mechanism.END_STOP):
+        what = ("the lamps come on turning up where they went out turning down" if m is Mechanism.TIMING_HYSTERESIS
+                else "the dimmer fires from the bottom of the knob")
+        if c.dimmer.low_end_trim:
+            return (f"Set the dimmer's low-end trim (its preset) so that {what}: raise it until a filament lamp "
+                    "glows at the bottom of the knob, then check the lamps come on there from off.")
+        why = ("fires at the set angle whatever the half-cycle before did" if m is Mechanism.TIMING_HYSTERESIS
+               else "fires at every position of the knob")
+        return (f"A dimmer with a low-end trim (preset), set so that {what}, or an electronic phase dimmer, whose "
+                f"controller {why}; otherwise tell the user where on the knob the light begins.")
+    if m is Mechanism.LAMP_START:
+        if c.dimmer.low_end_trim:
+            return ("Set the dimmer's low-end trim (its preset) up to the position at which the lamps come on from "
+                    "off, so that the bottom of the knob gives them the conduction they need to start.")
+        return ("Lamps with a lower start (made for phase dimmers: they start at the conduction the bottom of the knob "
+                "gives), or a dimmer with a low-end trim set to the position at which these lamps come on.")
     return ""
 
 

@@ -4,7 +4,9 @@
 the likely causes apart) into numbered steps an installer can print: what to connect
 (one lamp, then the full group, and a trial filament lamp), which knob positions in
 which order (up from off, then down from full), what to watch or measure, and which
-result means what.  The steps come from the checks that fail or caution, with their
+result means what.  For a late start (pops-on, dead travel) it compares the two
+directions and a trial filament lamp in the lamps' place: the dimmer's timing network or
+end stop against lamps that need more conduction to start.  The steps come from the checks that fail or caution, with their
 figures; nothing here simulates.
 """
 from __future__ import annotations
@@ -23,6 +25,9 @@ from loads.transformer import MagneticTransformer
 TRIAL_LAMPS_W = (60.0, 40.0, 25.0)
 # The checks whose outcome a trial on site can show, in the order the trial reaches them.
 SWITCH_CHECKS = ("minimum-load", "latching", "holding", "dimming-range", "flicker")
+# The symptoms of a late start (compat.symptoms names), for which the trial compares the
+# two directions and a trial filament lamp in place of the lamps.
+LATE_START_SYMPTOMS = ("pops-on", "dead-travel")
 
 
 def trial_lamp_w(circuit: Circuit) -> float | None:
@@ -65,6 +70,16 @@ def trial_plan(circuit: Circuit, report: Report, *, symptom: str | None = None, 
                  "(0 off, 1 full) at which the lamps come on, and whether they flicker on the way.")
     steps.append("From full, turn the knob slowly down to the bottom and note the position at which the light "
                  "first flickers or goes out.")
+    if symptom in LATE_START_SYMPTOMS:
+        steps.append("Note both positions: where the lamps come on turning up and where they go out turning down. "
+                     "Coming on well above where they go out is the rotary dimmer's timing network (its hysteresis); "
+                     "dark over the same bottom part both ways is where the dimmer does not fire at all (its end "
+                     "stop or trim).")
+        steps.append(f"With the circuit isolated, connect a {TRIAL_LAMPS_W[0]:.0f} W filament lamp in place of the "
+                     "lamps and repeat both turns. If the filament lamp also comes on late, or stays dark over the "
+                     "same bottom part, the dimmer is the cause (a trim or an electronic phase dimmer cures it); if it "
+                     "glows from near the bottom, the lamps need more conduction to start than the dimmer gives "
+                     "there (set the trim, or fit lamps with a lower start).")
     steps.append("Switch the dimmer off and watch the lamps in the dark for a minute: a faint glow or flashes.")
     if circuit.breaker is not None and "breaker" in bad:
         steps.append("With the lamps cold, switch on at full five times, a minute apart: note whether the breaker "
