@@ -116,3 +116,28 @@ def test_bypass_cures_three_small_lamps_on_a_phase_dimmer():
     c = Circuit(name="three LEDs", dimmer=Dimmer(control="phase", wiring="with-neutral", rc_diac=None),
                 loads=(ElectronicDriver(name="5 W LED", count=3, rated_power_w=5.0),))
     _bypass_that_cures(c)
+
+
+@pytest.mark.regression
+@pytest.mark.slow
+def test_demo_sizing_answer_is_pinned():
+    # Our own pinned output (regression, no outside source): `dimfit size` of the built-in
+    # demo as it answered on 2 December 2026, before the sizing search was made cheaper.
+    # A faster search must give the same lamp counts, device, edge and breaker counts.
+    from compat.sizing import size
+    from loads.catalogue import demo_circuit
+    out = size(demo_circuit())
+    halogen, led = "mains halogen lamp 42 W 230 V", "LED retrofit lamp 6 W 230 V, no bleeder"
+    assert out["verdict"] == "unsuitable" and out["failing"] == ["holding", "flicker"]
+    assert out["counts"] == {halogen: {"count": 1, "fewest": 2, "most": 3, "passes": True},
+                             led: {"count": 4, "fewest": None, "most": 5, "passes": False}}
+    corr = out["correction"]
+    # rtol 1e-9: the parts are E6/E12 values, so any other answer differs by a whole step
+    assert corr["capacitance_f"] == pytest.approx(68e-9, rel=1e-9, abs=0.0)
+    assert corr["resistance_ohm"] == pytest.approx(3300.0, rel=1e-9, abs=0.0)
+    assert corr["failing"] == [] and corr["verdict"] == "suitable-with-cautions"
+    assert out["edge"] == {"edge": "trailing", "verdict": "suitable-with-cautions", "failing": []}
+    assert out["breaker_curve"] == "B"
+    assert out["breaker_counts"] == {halogen: 40, led: 28}
+    # rtol 1e-9: arithmetic on the printed ratings (282 W = 400 W × the LED-rule utilisation)
+    assert out["rating_needed_w"] == pytest.approx(282.0, rel=1e-9, abs=0.0)
