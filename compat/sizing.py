@@ -24,7 +24,7 @@ import numpy as np
 
 from compat import breaker_band, derating
 from compat import checks as ck
-from compat.evaluate import evaluate, gather, judge
+from compat.evaluate import MIN_SETTINGS, evaluate, gather, judge
 from compat.report import Status, Verdict
 from compat.switch_on import (MAX_COUNT, breaker_max_counts, default_simulator, max_passing, min_passing,
                                peak_line_current_a, switch_on_runs, with_count)
@@ -65,7 +65,12 @@ RESISTOR_RATINGS_W = (0.25, 0.5, 1.0, 2.0, 3.0, 5.0, 10.0)
 CORRECTION_C_GRID_F = tuple(b * 10.0 ** e for e in range(-8, -4) for b in (1.0, 2.2, 4.7))
 
 
-def _failing(circuit: Circuit, ids, simulator=None, settings=SEARCH_SETTINGS) -> list[str]:
+def _failing(circuit: Circuit, ids, simulator=None, settings=SEARCH_SETTINGS, known=None) -> list[str]:
+    """The failing checks among ``ids`` of one probe; ``known``: failing checks already
+    judged by a full evaluation ({circuit: ids}), used instead of a coarse probe (the
+    full check is the one the answer must pass)."""
+    if known is not None and circuit in known:
+        return [cid for cid in known[circuit] if cid in ids]
     return [cid for cid in _failing_checks(circuit, simulator, settings) if cid in ids]
 
 
@@ -79,17 +84,36 @@ def _failing_checks(circuit: Circuit, simulator, settings: int) -> tuple[str, ..
     return tuple(r.id for r in judge(ev) if r.status is Status.FAIL)
 
 
-def count_limits(circuit: Circuit, simulator=None, progress=None) -> dict[str, dict]:
-    """Fewest and most units of each group that pass, the other groups unchanged."""
+def rating_count_bound(circuit: Circuit, index: int) -> int:
+    """The most units of group ``index`` (others unchanged) that the rating check passes,
+    0 if none: arithmetic on the printed ratings, no simulation (the load the rating
+    counts grows with the count)."""
+    return max_passing(lambda n: ck.check_rating(with_count(circuit, index, n)).status is not Status.FAIL,
+                       1, MAX_COUNT)
+
+
+def count_limits(circuit: Circuit, simulator=None, progress=None, known=None) -> dict[str, dict]:
+    """Fewest and most units of each group that pass, the other groups unchanged.
+
+    The most units: the rating check (arithmetic) bounds the count before any
+    simulation; the bound itself is probed first, since the rating is the usual limit,
+    and only if a simulated check fails there is the count searched below it.
+    ``known``: failing checks of circuits already fully evaluated ({circuit: ids})."""
     out = {}
     for i, g in enumerate(circuit.loads):
         def low_ok(n, i=i):
-            return not _failing(with_count(circuit, i, n), LOW_SIDE, simulator)
+            return not _failing(with_count(circuit, i, n), LOW_SIDE, simulator, known=known)
 
         def high_ok(n, i=i):
-            return not _failing(with_count(circuit, i, n), HIGH_SIDE, simulator)
+            return not _failing(with_count(circuit, i, n), HIGH_SIDE, simulator, known=known)
 
-        most = max_passing(high_ok, 1, MAX_COUNT)
+        bound = rating_count_bound(circuit, i)
+        if bound < 1:
+            most = 0
+        elif bound < MAX_COUNT and high_ok(bound):
+            most = bound
+        else:
+            most = max_passing(high_ok, 1, bound if bound == MAX_COUNT else bound - 1)
         fewest = min_passing(low_ok, 1, max(most, 1)) if most >= 1 else None
         out[g.name] = {"count": g.count, "fewest": fewest, "most": most if most >= 1 else None,
                        "passes": fewest is not None and most >= 1 and fewest <= most}
@@ -148,16 +172,17 @@ def resistor_rating_w(loss_w: float) -> float:
 _ALL = set(LOW_SIDE) | set(HIGH_SIDE) | {"edge-match", "dc-offset", "turn-off-surge"}
 
 
-def smallest_correction(circuit: Circuit, simulator=None) -> dict | None:
+def smallest_correction(circuit: Circuit, simulator=None, known=None) -> dict | None:
     """The smallest correction capacitance (an E3 scan upward, then the E6 value below
     the first pass, for each series resistor of ``correction_resistances_ohm``) that
     clears every failure a bypass can cure (``LOW_SIDE``) and adds none; its loss from
-    a steady simulation at full.  None if no device in range passes."""
+    a steady simulation at full.  None if no device in range passes.  ``known``: failing
+    checks of circuits already fully evaluated ({circuit: ids})."""
     # a bypass can cure the low-side failures (too little load); it cannot cure an
     # overload, a surge or a wrong edge, so those may stay failing as long as it adds no
     # failure of its own
     try:
-        before = set(_failing(dataclasses.replace(circuit, ranges=()), _ALL, simulator))
+        before = set(_failing(dataclasses.replace(circuit, ranges=()), _ALL, simulator, known=known))
     except RuntimeError:
         before = set()
     curable = set(LOW_SIDE)
@@ -207,16 +232,18 @@ def smallest_correction(circuit: Circuit, simulator=None) -> dict | None:
     # confirm the part as bought on the full sweep (the search ran a coarser one): its
     # E6 value, and that value at the low end of its tolerance (less capacitance, less
     # current to carry the switch); step up the E6 values until both pass, or give up at
-    # the top of the range
+    # the top of the range.  The low end is judged first (the full sweep without the
+    # report: the same runs and checks as ``evaluate``): it fails more often, and then
+    # the nominal part's evaluation is not needed.
     while True:
         dev = correction_device(circuit, c, r)
         fixed = dataclasses.replace(circuit, correction=dev, ranges=())
         low = dataclasses.replace(circuit, correction=correction_device(circuit, c * (1 - CAPACITOR_TOLERANCE), r),
                                   ranges=())
-        full = evaluate(fixed, simulator=simulator)
-        if ({x.id for x in full.checks if x.status is Status.FAIL} <= tolerated
-                and {x.id for x in evaluate(low, simulator=simulator).checks if x.status is Status.FAIL} <= tolerated):
-            break
+        if set(_failing(low, ck.CHECK_IDS, simulator, settings=MIN_SETTINGS)) <= tolerated:
+            full = evaluate(fixed, simulator=simulator)
+            if {x.id for x in full.checks if x.status is Status.FAIL} <= tolerated:
+                break
         bigger = _round_up_preferred(c * 1.01)
         if bigger > CORRECTION_C_RANGE_F[1] * (1 + 1e-9):
             return None
@@ -240,6 +267,8 @@ def size(circuit: Circuit, progress=None, simulator=None) -> dict:
     base = dataclasses.replace(circuit, ranges=())
     report = evaluate(base, simulator=simulator)
     failing = [c.id for c in report.checks if c.status is Status.FAIL]
+    # the circuit as it is has had its full check: the searches use that, not a coarse probe
+    known = {base: tuple(failing)}
     steps = [0]
     total = 5
 
@@ -248,11 +277,11 @@ def size(circuit: Circuit, progress=None, simulator=None) -> dict:
         if progress:
             progress(steps[0], total)
 
-    counts = count_limits(base, simulator)
+    counts = count_limits(base, simulator, known=known)
     step()
     correction = None
     if report.verdict is Verdict.UNSUITABLE:
-        correction = smallest_correction(base, simulator)
+        correction = smallest_correction(base, simulator, known=known)
         if correction is not None:
             check = correction.pop("report")   # the full evaluation that confirmed the device
             correction["verdict"] = str(check.verdict)
