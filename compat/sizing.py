@@ -18,7 +18,9 @@ from __future__ import annotations
 
 import dataclasses
 import math
+from concurrent.futures import ThreadPoolExecutor
 from functools import lru_cache
+from threading import Lock
 
 import numpy as np
 
@@ -271,46 +273,59 @@ def size(circuit: Circuit, progress=None, simulator=None) -> dict:
     known = {base: tuple(failing)}
     steps = [0]
     total = 5
+    lock = Lock()
 
     def step():
-        steps[0] += 1
-        if progress:
-            progress(steps[0], total)
+        with lock:
+            steps[0] += 1
+            if progress:
+                progress(steps[0], total)
 
-    counts = count_limits(base, simulator, known=known)
-    step()
-    correction = None
-    if report.verdict is Verdict.UNSUITABLE:
-        correction = smallest_correction(base, simulator, known=known)
-        if correction is not None:
-            check = correction.pop("report")   # the full evaluation that confirmed the device
-            correction["verdict"] = str(check.verdict)
-            correction["failing"] = [c.id for c in check.checks if c.status is Status.FAIL]
-    step()
-    other = Edge.TRAILING if base.dimmer.edge is Edge.LEADING else Edge.LEADING
-    # Engineering choice: a trailing-edge dimmer switches softly and carries no RFI
-    # choke (its current would be cut at every turn-off); a leading-edge one gets the
-    # default choke back.
-    dim2 = dataclasses.replace(base.dimmer, edge=other,
-                               control=Control.PHASE if other is Edge.TRAILING else base.dimmer.control,
-                               choke_inductance_h=0.0 if other is Edge.TRAILING else Dimmer().choke_inductance_h)
-    alt = evaluate(dataclasses.replace(base, dimmer=dim2), simulator=simulator)
-    edge = {"edge": str(other), "verdict": str(alt.verdict),
-            "failing": [c.id for c in alt.checks if c.status is Status.FAIL]}
-    step()
+    def beside():
+        """The searches that do not depend on the correction device's."""
+        counts = count_limits(base, simulator, known=known)
+        step()
+        other = Edge.TRAILING if base.dimmer.edge is Edge.LEADING else Edge.LEADING
+        # Engineering choice: a trailing-edge dimmer switches softly and carries no RFI
+        # choke (its current would be cut at every turn-off); a leading-edge one gets the
+        # default choke back.
+        dim2 = dataclasses.replace(base.dimmer, edge=other,
+                                   control=Control.PHASE if other is Edge.TRAILING else base.dimmer.control,
+                                   choke_inductance_h=0.0 if other is Edge.TRAILING else Dimmer().choke_inductance_h)
+        alt = evaluate(dataclasses.replace(base, dimmer=dim2), simulator=simulator)
+        edge = {"edge": str(other), "verdict": str(alt.verdict),
+                "failing": [c.id for c in alt.checks if c.status is Status.FAIL]}
+        step()
+        runs = switch_on_runs(base, simulator or default_simulator())     # one set of runs serves both figures
+        peak = peak_line_current_a(runs)
+        curve = None
+        bcounts = {}
+        if base.breaker is not None:
+            _, surge = ck.worst_surge(base, runs)
+            c = breaker_band.holding_curve(surge.peak_current_a, base.breaker.rated_current_a, i2t_a2s=surge.i2t_a2s,
+                                           frequency_hz=base.supply.frequency_hz)
+            curve = str(c) if c is not None else None
+            bcounts = breaker_max_counts(base, simulator)
+        step()
+        return counts, edge, peak, curve, bcounts
+
+    # The correction search is the longest chain of probes, each waiting on the one
+    # before; the lamp counts, the other edge and the breaker's counts do not depend on
+    # it, so they run beside it in a second thread (the compiled integrator releases the
+    # GIL; each probe is deterministic, so the answers are those of running them in turn).
+    with ThreadPoolExecutor(max_workers=1) as pool:
+        others = pool.submit(beside)
+        correction = None
+        if report.verdict is Verdict.UNSUITABLE:
+            correction = smallest_correction(base, simulator, known=known)
+            if correction is not None:
+                check = correction.pop("report")   # the full evaluation that confirmed the device
+                correction["verdict"] = str(check.verdict)
+                correction["failing"] = [c.id for c in check.checks if c.status is Status.FAIL]
+        step()
+        counts, edge, peak, curve, bcounts = others.result()
     use = derating.rating_use(base.dimmer, base.loads)
     need = base.dimmer.rated_load_w * use.utilisation
-    step()
-    runs = switch_on_runs(base, simulator or default_simulator())     # one set of runs serves both figures
-    peak = peak_line_current_a(runs)
-    curve = None
-    bcounts = {}
-    if base.breaker is not None:
-        _, surge = ck.worst_surge(base, runs)
-        c = breaker_band.holding_curve(surge.peak_current_a, base.breaker.rated_current_a, i2t_a2s=surge.i2t_a2s,
-                                       frequency_hz=base.supply.frequency_hz)
-        curve = str(c) if c is not None else None
-        bcounts = breaker_max_counts(base, simulator)
     step()
     return {"circuit": base.name, "verdict": str(report.verdict), "failing": failing, "counts": counts,
             "correction": correction, "edge": edge, "rating_needed_w": need, "derating_factor": use.factor,
