@@ -199,13 +199,19 @@ TRIM_MAX_SETTING = 0.5
 UNTRIMMED_MAX_SETTING = 0.25
 
 
-def _sweep_checks(c: Circuit, down, up, w, bottom=()) -> dict[str, CheckResult]:
+def _sweep_check_calls(c: Circuit, down, up, w, bottom=()) -> dict[str, Callable[[], CheckResult]]:
+    """Each sweep check, not yet judged, by id (``SWEEP_CHECKS``)."""
     runs = tuple(down) + tuple(up)
-    return {"latching": ck.check_latching(c, runs, w), "holding": ck.check_holding(c, runs, w),
-            "repetitive-peak": ck.check_repetitive_peak(c, runs), "dc-offset": ck.check_dc_offset(c, runs),
-            "turn-off-surge": ck.check_turn_off_surge(c, runs),
-            "dimming-range": ck.check_dimming_range(c, down, up, w, bottom), "flicker": ck.check_flicker(c, runs, w),
-            "dissipation": ck.check_dissipation(c, runs)}
+    return {"latching": lambda: ck.check_latching(c, runs, w), "holding": lambda: ck.check_holding(c, runs, w),
+            "repetitive-peak": lambda: ck.check_repetitive_peak(c, runs),
+            "dc-offset": lambda: ck.check_dc_offset(c, runs),
+            "turn-off-surge": lambda: ck.check_turn_off_surge(c, runs),
+            "dimming-range": lambda: ck.check_dimming_range(c, down, up, w, bottom),
+            "flicker": lambda: ck.check_flicker(c, runs, w), "dissipation": lambda: ck.check_dissipation(c, runs)}
+
+
+def _sweep_checks(c: Circuit, down, up, w, bottom=()) -> dict[str, CheckResult]:
+    return {cid: call() for cid, call in _sweep_check_calls(c, down, up, w, bottom).items()}
 
 
 def usable_from(ev: Evidence, full: dict[str, CheckResult]) -> tuple[float, dict[str, CheckResult]] | None:
@@ -214,6 +220,9 @@ def usable_from(ev: Evidence, full: dict[str, CheckResult]) -> tuple[float, dict
     from there up; None if they fail higher up than ``TRIM_MAX_SETTING`` or not at all."""
     if not any(r.status is Status.FAIL for r in full.values()):
         return None
+    # the checks that failed on the whole travel are judged first: a setting is passed
+    # over at its first failing check, so the others need not be judged there
+    order = sorted(full, key=lambda cid: full[cid].status is not Status.FAIL)
     for s in sorted({r.setting for r in ev.down}):
         if s <= 0.0:
             continue
@@ -222,9 +231,14 @@ def usable_from(ev: Evidence, full: dict[str, CheckResult]) -> tuple[float, dict
         down = tuple(r for r in ev.down if r.setting >= s - 1e-9)
         up = tuple(r for r in ev.up if r.setting >= s - 1e-9)
         bottom = tuple(r for r in ev.bottom if r.setting >= s - 1e-9)
-        above = _sweep_checks(ev.circuit, down, up, ev.light_weights, bottom)
-        if not any(r.status is Status.FAIL for r in above.values()):
-            return s, above
+        calls = _sweep_check_calls(ev.circuit, down, up, ev.light_weights, bottom)
+        above = {}
+        for cid in order:
+            above[cid] = calls[cid]()
+            if above[cid].status is Status.FAIL:
+                break
+        else:
+            return s, {cid: above[cid] for cid in calls}
     return None
 
 
