@@ -97,25 +97,45 @@ def gather(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress=None, can
             if progress is not None:
                 progress(done[0], total)
 
+    # the single runs (off-state, then each switch-on angle), taken by whichever thread
+    # is free once its walk is done: the walks differ in cost from circuit to circuit
+    singles = ["off"] + list(INRUSH_ANGLES_DEG)
+    single_out: dict = {}
+    taken = [0]
+
+    def take_singles():
+        while True:
+            with lock:
+                if taken[0] >= len(singles):
+                    return
+                job = singles[taken[0]]
+                taken[0] += 1
+            if cancel is not None and cancel.is_set():
+                raise Cancelled()
+            if job == "off":
+                single_out[job] = sim.simulate(circuit, setting=0.0, no_firing=True, start="cold", cycles=OFF_CYCLES,
+                                               samples_per_cycle=OFF_SAMPLES_PER_CYCLE)
+            else:
+                single_out[job] = switch_on_runs(circuit, sim, angles_deg=(job,))[0]
+            tick()
+
     def second_thread():
         up = walk(circuit, grid, "up", sim, tick=tick, cancel=cancel)
-        inrush = switch_on_runs(circuit, sim, tick=tick, cancel=cancel)
-        if cancel is not None and cancel.is_set():
-            raise Cancelled()
-        off = sim.simulate(circuit, setting=0.0, no_firing=True, start="cold", cycles=OFF_CYCLES,
-                           samples_per_cycle=OFF_SAMPLES_PER_CYCLE)
-        tick()
-        return up, inrush, off
+        take_singles()
+        return up
 
     # the runs are independent but for the state each walk carries: the compiled
-    # integrator releases the GIL, so the upward walk, the switch-on and the off-state
-    # runs go in a second thread while this one walks down (from the steady state at
-    # full, the costliest start); about even shares on two cores
+    # integrator releases the GIL, so the upward walk goes in a second thread while this
+    # one walks down (from the steady state at full, the costliest start); the off-state
+    # and switch-on runs go to whichever finishes first; about even shares on two cores
     with ThreadPoolExecutor(max_workers=1) as pool:
         second = pool.submit(second_thread)
         down = walk(circuit, grid, "down", sim, tick=tick, cancel=cancel)
         bottom = refine_drop_out(circuit, down, sim, cancel=cancel)
-        up, inrush, off = second.result()
+        take_singles()
+        up = second.result()
+    off = single_out["off"]
+    inrush = tuple(single_out[a] for a in INRUSH_ANGLES_DEG)
     if cancel is not None and cancel.is_set():
         raise Cancelled()
     w = np.asarray(sim.reference_light_weights(circuit), dtype=float)
