@@ -11,8 +11,10 @@
 * the breaker curve whose instantaneous band holds the switch-on surge, and how many
   units of each group a given breaker holds.
 
-The search runs a coarser sweep than ``evaluate`` (``SEARCH_SETTINGS`` points) and the
-answer is then confirmed by a full ``evaluate``.
+The searches run a coarser sweep than ``evaluate`` (``SEARCH_SETTINGS`` points); the
+correction device is then confirmed by a full ``evaluate``.  The rating check bounds
+the lamp counts before any simulation, and the circuit as it is is judged by its own
+full evaluation.
 """
 from __future__ import annotations
 
