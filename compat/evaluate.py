@@ -97,25 +97,45 @@ def gather(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress=None, can
             if progress is not None:
                 progress(done[0], total)
 
+    # the single runs (off-state, then each switch-on angle), taken by whichever thread
+    # is free once its walk is done: the walks differ in cost from circuit to circuit
+    singles = ["off"] + list(INRUSH_ANGLES_DEG)
+    single_out: dict = {}
+    taken = [0]
+
+    def take_singles():
+        while True:
+            with lock:
+                if taken[0] >= len(singles):
+                    return
+                job = singles[taken[0]]
+                taken[0] += 1
+            if cancel is not None and cancel.is_set():
+                raise Cancelled()
+            if job == "off":
+                single_out[job] = sim.simulate(circuit, setting=0.0, no_firing=True, start="cold", cycles=OFF_CYCLES,
+                                               samples_per_cycle=OFF_SAMPLES_PER_CYCLE)
+            else:
+                single_out[job] = switch_on_runs(circuit, sim, angles_deg=(job,))[0]
+            tick()
+
     def second_thread():
         up = walk(circuit, grid, "up", sim, tick=tick, cancel=cancel)
-        inrush = switch_on_runs(circuit, sim, tick=tick, cancel=cancel)
-        if cancel is not None and cancel.is_set():
-            raise Cancelled()
-        off = sim.simulate(circuit, setting=0.0, no_firing=True, start="cold", cycles=OFF_CYCLES,
-                           samples_per_cycle=OFF_SAMPLES_PER_CYCLE)
-        tick()
-        return up, inrush, off
+        take_singles()
+        return up
 
     # the runs are independent but for the state each walk carries: the compiled
-    # integrator releases the GIL, so the upward walk, the switch-on and the off-state
-    # runs go in a second thread while this one walks down (from the steady state at
-    # full, the costliest start); about even shares on two cores
+    # integrator releases the GIL, so the upward walk goes in a second thread while this
+    # one walks down (from the steady state at full, the costliest start); the off-state
+    # and switch-on runs go to whichever finishes first; about even shares on two cores
     with ThreadPoolExecutor(max_workers=1) as pool:
         second = pool.submit(second_thread)
         down = walk(circuit, grid, "down", sim, tick=tick, cancel=cancel)
         bottom = refine_drop_out(circuit, down, sim, cancel=cancel)
-        up, inrush, off = second.result()
+        take_singles()
+        up = second.result()
+    off = single_out["off"]
+    inrush = tuple(single_out[a] for a in INRUSH_ANGLES_DEG)
     if cancel is not None and cancel.is_set():
         raise Cancelled()
     w = np.asarray(sim.reference_light_weights(circuit), dtype=float)
@@ -199,25 +219,30 @@ TRIM_MAX_SETTING = 0.5
 UNTRIMMED_MAX_SETTING = 0.25
 
 
-def _sweep_checks(c: Circuit, down, up, w, bottom=(), only=None) -> dict[str, CheckResult]:
-    """The checks judged on the sweep's runs (``only``: just these ids)."""
+def _sweep_check_calls(c: Circuit, down, up, w, bottom=()) -> dict[str, Callable[[], CheckResult]]:
+    """Each sweep check, not yet judged, by id (``SWEEP_CHECKS``)."""
     runs = tuple(down) + tuple(up)
-    checks = {"latching": lambda: ck.check_latching(c, runs, w), "holding": lambda: ck.check_holding(c, runs, w),
-              "repetitive-peak": lambda: ck.check_repetitive_peak(c, runs),
-              "dc-offset": lambda: ck.check_dc_offset(c, runs),
-              "turn-off-surge": lambda: ck.check_turn_off_surge(c, runs),
-              "dimming-range": lambda: ck.check_dimming_range(c, down, up, w, bottom),
-              "flicker": lambda: ck.check_flicker(c, runs, w), "dissipation": lambda: ck.check_dissipation(c, runs)}
-    return {cid: judge_one() for cid, judge_one in checks.items() if only is None or cid in only}
+    return {"latching": lambda: ck.check_latching(c, runs, w), "holding": lambda: ck.check_holding(c, runs, w),
+            "repetitive-peak": lambda: ck.check_repetitive_peak(c, runs),
+            "dc-offset": lambda: ck.check_dc_offset(c, runs),
+            "turn-off-surge": lambda: ck.check_turn_off_surge(c, runs),
+            "dimming-range": lambda: ck.check_dimming_range(c, down, up, w, bottom),
+            "flicker": lambda: ck.check_flicker(c, runs, w), "dissipation": lambda: ck.check_dissipation(c, runs)}
+
+
+def _sweep_checks(c: Circuit, down, up, w, bottom=()) -> dict[str, CheckResult]:
+    return {cid: call() for cid, call in _sweep_check_calls(c, down, up, w, bottom).items()}
 
 
 def usable_from(ev: Evidence, full: dict[str, CheckResult]) -> tuple[float, dict[str, CheckResult]] | None:
     """Where sweep checks fail only at the bottom of the travel: the lowest setting from
     which every sweep check passes or cautions, with the checks judged on the settings
     from there up; None if they fail higher up than ``TRIM_MAX_SETTING`` or not at all."""
-    failing = {cid for cid, r in full.items() if r.status is Status.FAIL}
-    if not failing:
+    if not any(r.status is Status.FAIL for r in full.values()):
         return None
+    # the checks that failed on the whole travel are judged first: a setting is passed
+    # over at its first failing check, so the others need not be judged there
+    order = sorted(full, key=lambda cid: full[cid].status is not Status.FAIL)
     for s in sorted({r.setting for r in ev.down}):
         if s <= 0.0:
             continue
@@ -226,13 +251,14 @@ def usable_from(ev: Evidence, full: dict[str, CheckResult]) -> tuple[float, dict
         down = tuple(r for r in ev.down if r.setting >= s - 1e-9)
         up = tuple(r for r in ev.up if r.setting >= s - 1e-9)
         bottom = tuple(r for r in ev.bottom if r.setting >= s - 1e-9)
-        # the checks that failed first (the cheap test), then all of them once those pass
-        if any(r.status is Status.FAIL for r in
-               _sweep_checks(ev.circuit, down, up, ev.light_weights, bottom, only=failing).values()):
-            continue
-        above = _sweep_checks(ev.circuit, down, up, ev.light_weights, bottom)
-        if not any(r.status is Status.FAIL for r in above.values()):
-            return s, above
+        calls = _sweep_check_calls(ev.circuit, down, up, ev.light_weights, bottom)
+        above = {}
+        for cid in order:
+            above[cid] = calls[cid]()
+            if above[cid].status is Status.FAIL:
+                break
+        else:
+            return s, {cid: above[cid] for cid in calls}
     return None
 
 

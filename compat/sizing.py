@@ -11,20 +11,24 @@
 * the breaker curve whose instantaneous band holds the switch-on surge, and how many
   units of each group a given breaker holds.
 
-The search runs a coarser sweep than ``evaluate`` (``SEARCH_SETTINGS`` points) and the
-answer is then confirmed by a full ``evaluate``.
+The searches run a coarser sweep than ``evaluate`` (``SEARCH_SETTINGS`` points); the
+correction device is then confirmed by a full ``evaluate``.  The rating check bounds
+the lamp counts before any simulation, and the circuit as it is is judged by its own
+full evaluation.
 """
 from __future__ import annotations
 
 import dataclasses
 import math
+from concurrent.futures import ThreadPoolExecutor
 from functools import lru_cache
+from threading import Lock
 
 import numpy as np
 
 from compat import breaker_band, derating
 from compat import checks as ck
-from compat.evaluate import evaluate, gather, judge
+from compat.evaluate import MIN_SETTINGS, evaluate, gather, judge
 from compat.report import Status, Verdict
 from compat.switch_on import (MAX_COUNT, breaker_max_counts, default_simulator, max_passing, min_passing,
                                peak_line_current_a, switch_on_runs, with_count)
@@ -65,7 +69,12 @@ RESISTOR_RATINGS_W = (0.25, 0.5, 1.0, 2.0, 3.0, 5.0, 10.0)
 CORRECTION_C_GRID_F = tuple(b * 10.0 ** e for e in range(-8, -4) for b in (1.0, 2.2, 4.7))
 
 
-def _failing(circuit: Circuit, ids, simulator=None, settings=SEARCH_SETTINGS) -> list[str]:
+def _failing(circuit: Circuit, ids, simulator=None, settings=SEARCH_SETTINGS, known=None) -> list[str]:
+    """The failing checks among ``ids`` of one probe; ``known``: failing checks already
+    judged by a full evaluation ({circuit: ids}), used instead of a coarse probe (the
+    full check is the one the answer must pass)."""
+    if known is not None and circuit in known:
+        return [cid for cid in known[circuit] if cid in ids]
     return [cid for cid in _failing_checks(circuit, simulator, settings) if cid in ids]
 
 
@@ -79,17 +88,36 @@ def _failing_checks(circuit: Circuit, simulator, settings: int) -> tuple[str, ..
     return tuple(r.id for r in judge(ev) if r.status is Status.FAIL)
 
 
-def count_limits(circuit: Circuit, simulator=None, progress=None) -> dict[str, dict]:
-    """Fewest and most units of each group that pass, the other groups unchanged."""
+def rating_count_bound(circuit: Circuit, index: int) -> int:
+    """The most units of group ``index`` (others unchanged) that the rating check passes,
+    0 if none: arithmetic on the printed ratings, no simulation (the load the rating
+    counts grows with the count)."""
+    return max_passing(lambda n: ck.check_rating(with_count(circuit, index, n)).status is not Status.FAIL,
+                       1, MAX_COUNT)
+
+
+def count_limits(circuit: Circuit, simulator=None, progress=None, known=None) -> dict[str, dict]:
+    """Fewest and most units of each group that pass, the other groups unchanged.
+
+    The most units: the rating check (arithmetic) bounds the count before any
+    simulation; the bound itself is probed first, since the rating is the usual limit,
+    and only if a simulated check fails there is the count searched below it.
+    ``known``: failing checks of circuits already fully evaluated ({circuit: ids})."""
     out = {}
     for i, g in enumerate(circuit.loads):
         def low_ok(n, i=i):
-            return not _failing(with_count(circuit, i, n), LOW_SIDE, simulator)
+            return not _failing(with_count(circuit, i, n), LOW_SIDE, simulator, known=known)
 
         def high_ok(n, i=i):
-            return not _failing(with_count(circuit, i, n), HIGH_SIDE, simulator)
+            return not _failing(with_count(circuit, i, n), HIGH_SIDE, simulator, known=known)
 
-        most = max_passing(high_ok, 1, MAX_COUNT)
+        bound = rating_count_bound(circuit, i)
+        if bound < 1:
+            most = 0
+        elif bound < MAX_COUNT and high_ok(bound):
+            most = bound
+        else:
+            most = max_passing(high_ok, 1, bound if bound == MAX_COUNT else bound - 1)
         fewest = min_passing(low_ok, 1, max(most, 1)) if most >= 1 else None
         out[g.name] = {"count": g.count, "fewest": fewest, "most": most if most >= 1 else None,
                        "passes": fewest is not None and most >= 1 and fewest <= most}
@@ -148,16 +176,17 @@ def resistor_rating_w(loss_w: float) -> float:
 _ALL = set(LOW_SIDE) | set(HIGH_SIDE) | {"edge-match", "dc-offset", "turn-off-surge"}
 
 
-def smallest_correction(circuit: Circuit, simulator=None) -> dict | None:
+def smallest_correction(circuit: Circuit, simulator=None, known=None) -> dict | None:
     """The smallest correction capacitance (an E3 scan upward, then the E6 value below
     the first pass, for each series resistor of ``correction_resistances_ohm``) that
     clears every failure a bypass can cure (``LOW_SIDE``) and adds none; its loss from
-    a steady simulation at full.  None if no device in range passes."""
+    a steady simulation at full.  None if no device in range passes.  ``known``: failing
+    checks of circuits already fully evaluated ({circuit: ids})."""
     # a bypass can cure the low-side failures (too little load); it cannot cure an
     # overload, a surge or a wrong edge, so those may stay failing as long as it adds no
     # failure of its own
     try:
-        before = set(_failing(dataclasses.replace(circuit, ranges=()), _ALL, simulator))
+        before = set(_failing(dataclasses.replace(circuit, ranges=()), _ALL, simulator, known=known))
     except RuntimeError:
         before = set()
     curable = set(LOW_SIDE)
@@ -207,16 +236,18 @@ def smallest_correction(circuit: Circuit, simulator=None) -> dict | None:
     # confirm the part as bought on the full sweep (the search ran a coarser one): its
     # E6 value, and that value at the low end of its tolerance (less capacitance, less
     # current to carry the switch); step up the E6 values until both pass, or give up at
-    # the top of the range
+    # the top of the range.  The low end is judged first (the full sweep without the
+    # report: the same runs and checks as ``evaluate``): it fails more often, and then
+    # the nominal part's evaluation is not needed.
     while True:
         dev = correction_device(circuit, c, r)
         fixed = dataclasses.replace(circuit, correction=dev, ranges=())
         low = dataclasses.replace(circuit, correction=correction_device(circuit, c * (1 - CAPACITOR_TOLERANCE), r),
                                   ranges=())
-        full = evaluate(fixed, simulator=simulator)
-        if ({x.id for x in full.checks if x.status is Status.FAIL} <= tolerated
-                and {x.id for x in evaluate(low, simulator=simulator).checks if x.status is Status.FAIL} <= tolerated):
-            break
+        if set(_failing(low, ck.CHECK_IDS, simulator, settings=MIN_SETTINGS)) <= tolerated:
+            full = evaluate(fixed, simulator=simulator)
+            if {x.id for x in full.checks if x.status is Status.FAIL} <= tolerated:
+                break
         bigger = _round_up_preferred(c * 1.01)
         if bigger > CORRECTION_C_RANGE_F[1] * (1 + 1e-9):
             return None
@@ -240,48 +271,63 @@ def size(circuit: Circuit, progress=None, simulator=None) -> dict:
     base = dataclasses.replace(circuit, ranges=())
     report = evaluate(base, simulator=simulator)
     failing = [c.id for c in report.checks if c.status is Status.FAIL]
+    # the circuit as it is has had its full check: the searches use that, not a coarse probe
+    known = {base: tuple(failing)}
     steps = [0]
     total = 5
+    lock = Lock()
 
     def step():
-        steps[0] += 1
-        if progress:
-            progress(steps[0], total)
+        with lock:
+            steps[0] += 1
+            if progress:
+                progress(steps[0], total)
 
-    counts = count_limits(base, simulator)
-    step()
-    correction = None
-    if report.verdict is Verdict.UNSUITABLE:
-        correction = smallest_correction(base, simulator)
-        if correction is not None:
-            check = correction.pop("report")   # the full evaluation that confirmed the device
-            correction["verdict"] = str(check.verdict)
-            correction["failing"] = [c.id for c in check.checks if c.status is Status.FAIL]
-    step()
-    other = Edge.TRAILING if base.dimmer.edge is Edge.LEADING else Edge.LEADING
-    # Engineering choice: a trailing-edge dimmer switches softly and carries no RFI
-    # choke (its current would be cut at every turn-off); a leading-edge one gets the
-    # default choke back.
-    dim2 = dataclasses.replace(base.dimmer, edge=other,
-                               control=Control.PHASE if other is Edge.TRAILING else base.dimmer.control,
-                               choke_inductance_h=0.0 if other is Edge.TRAILING else Dimmer().choke_inductance_h)
-    alt = evaluate(dataclasses.replace(base, dimmer=dim2), simulator=simulator)
-    edge = {"edge": str(other), "verdict": str(alt.verdict),
-            "failing": [c.id for c in alt.checks if c.status is Status.FAIL]}
-    step()
+    def beside():
+        """The searches that do not depend on the correction device's."""
+        counts = count_limits(base, simulator, known=known)
+        step()
+        other = Edge.TRAILING if base.dimmer.edge is Edge.LEADING else Edge.LEADING
+        # Engineering choice: a trailing-edge dimmer switches softly and carries no RFI
+        # choke (its current would be cut at every turn-off); a leading-edge one gets the
+        # default choke back.
+        dim2 = dataclasses.replace(base.dimmer, edge=other,
+                                   control=Control.PHASE if other is Edge.TRAILING else base.dimmer.control,
+                                   choke_inductance_h=0.0 if other is Edge.TRAILING else Dimmer().choke_inductance_h)
+        alt = evaluate(dataclasses.replace(base, dimmer=dim2), simulator=simulator)
+        edge = {"edge": str(other), "verdict": str(alt.verdict),
+                "failing": [c.id for c in alt.checks if c.status is Status.FAIL]}
+        step()
+        runs = switch_on_runs(base, simulator or default_simulator())     # one set of runs serves both figures
+        peak = peak_line_current_a(runs)
+        curve = None
+        bcounts = {}
+        if base.breaker is not None:
+            _, surge = ck.worst_surge(base, runs)
+            c = breaker_band.holding_curve(surge.peak_current_a, base.breaker.rated_current_a, i2t_a2s=surge.i2t_a2s,
+                                           frequency_hz=base.supply.frequency_hz)
+            curve = str(c) if c is not None else None
+            bcounts = breaker_max_counts(base, simulator)
+        step()
+        return counts, edge, peak, curve, bcounts
+
+    # The correction search is the longest chain of probes, each waiting on the one
+    # before; the lamp counts, the other edge and the breaker's counts do not depend on
+    # it, so they run beside it in a second thread (the compiled integrator releases the
+    # GIL; each probe is deterministic, so the answers are those of running them in turn).
+    with ThreadPoolExecutor(max_workers=1) as pool:
+        others = pool.submit(beside)
+        correction = None
+        if report.verdict is Verdict.UNSUITABLE:
+            correction = smallest_correction(base, simulator, known=known)
+            if correction is not None:
+                check = correction.pop("report")   # the full evaluation that confirmed the device
+                correction["verdict"] = str(check.verdict)
+                correction["failing"] = [c.id for c in check.checks if c.status is Status.FAIL]
+        step()
+        counts, edge, peak, curve, bcounts = others.result()
     use = derating.rating_use(base.dimmer, base.loads)
     need = base.dimmer.rated_load_w * use.utilisation
-    step()
-    runs = switch_on_runs(base, simulator or default_simulator())     # one set of runs serves both figures
-    peak = peak_line_current_a(runs)
-    curve = None
-    bcounts = {}
-    if base.breaker is not None:
-        _, surge = ck.worst_surge(base, runs)
-        c = breaker_band.holding_curve(surge.peak_current_a, base.breaker.rated_current_a, i2t_a2s=surge.i2t_a2s,
-                                       frequency_hz=base.supply.frequency_hz)
-        curve = str(c) if c is not None else None
-        bcounts = breaker_max_counts(base, simulator)
     step()
     return {"circuit": base.name, "verdict": str(report.verdict), "failing": failing, "counts": counts,
             "correction": correction, "edge": edge, "rating_needed_w": need, "derating_factor": use.factor,

@@ -9,7 +9,7 @@ from compat.evaluate import evaluate
 from compat.report import Status, Verdict
 from compat.sizing import (E6, E12, _round_up_preferred, correction_resistances_ohm, resistor_rating_w, round_up_series,
                            smallest_correction, x2_rating_v)
-from compat.switch_on import breaker_max_counts, max_passing, min_passing, switch_on_surge
+from compat.switch_on import breaker_max_counts, largest_passing_below, max_passing, min_passing, switch_on_surge
 from loads.breaker import Breaker
 from loads.circuit import Circuit
 from loads.dimmer import Dimmer
@@ -116,3 +116,80 @@ def test_bypass_cures_three_small_lamps_on_a_phase_dimmer():
     c = Circuit(name="three LEDs", dimmer=Dimmer(control="phase", wiring="with-neutral", rc_diac=None),
                 loads=(ElectronicDriver(name="5 W LED", count=3, rated_power_w=5.0),))
     _bypass_that_cures(c)
+
+
+@pytest.mark.regression
+@pytest.mark.slow
+def test_demo_sizing_answer_is_pinned():
+    # Our own pinned output (regression, no outside source): `dimfit size` of the built-in
+    # demo as it answered on 2 December 2026, before the sizing search was made cheaper.
+    # A faster search must give the same lamp counts, device, edge and breaker counts.
+    from compat.sizing import size
+    from loads.catalogue import demo_circuit
+    out = size(demo_circuit())
+    halogen, led = "mains halogen lamp 42 W 230 V", "LED retrofit lamp 6 W 230 V, no bleeder"
+    assert out["verdict"] == "unsuitable" and out["failing"] == ["holding", "flicker"]
+    assert out["counts"] == {halogen: {"count": 1, "fewest": 2, "most": 3, "passes": True},
+                             led: {"count": 4, "fewest": None, "most": 5, "passes": False}}
+    corr = out["correction"]
+    # rtol 1e-9: the parts are E6/E12 values, so any other answer differs by a whole step
+    assert corr["capacitance_f"] == pytest.approx(68e-9, rel=1e-9, abs=0.0)
+    assert corr["resistance_ohm"] == pytest.approx(3300.0, rel=1e-9, abs=0.0)
+    assert corr["failing"] == [] and corr["verdict"] == "suitable-with-cautions"
+    assert out["edge"] == {"edge": "trailing", "verdict": "suitable-with-cautions", "failing": []}
+    assert out["breaker_curve"] == "B"
+    assert out["breaker_counts"] == {halogen: 40, led: 28}
+    # rtol 1e-9: arithmetic on the printed ratings (282 W = 400 W × the LED-rule utilisation)
+    assert out["rating_needed_w"] == pytest.approx(282.0, rel=1e-9, abs=0.0)
+
+
+@pytest.mark.analytic
+@pytest.mark.parametrize("threshold", [0, 1, 2, 5, 40, 63])
+def test_largest_passing_below_finds_the_boundary(threshold):
+    # a count found on fewer switch-on angles lies at or above the answer; the answer
+    # is searched below it (analytic: a step function, the boundary known)
+    calls = []
+
+    def ok(n):
+        calls.append(n)
+        return n <= threshold
+
+    assert largest_passing_below(ok, 64) == threshold
+    assert len(calls) <= 2 * 7 + 1                     # logarithmic in the distance
+    assert largest_passing_below(ok, threshold + 1) == threshold
+
+
+@pytest.mark.analytic
+def test_rating_bounds_the_count_search_without_simulating():
+    # Closed form on the demo's printed figures: a 400 W leading-edge dimmer with no
+    # LED rating counts LED lamps at 10 × their watts (common practice, no source, the
+    # rule compat.derating states).  Halogen: 42 n + 4 × 6 × 10 ≤ 400 gives n ≤ 3.8, so 3;
+    # LED: 42 + 60 n ≤ 400 gives n ≤ 5.97, so 5.
+    from compat.sizing import rating_count_bound
+    from loads.catalogue import demo_circuit
+    c = demo_circuit()
+    assert rating_count_bound(c, 0) == 3
+    assert rating_count_bound(c, 1) == 5
+
+
+@pytest.mark.slow
+def test_count_search_simulates_no_count_the_rating_refuses(monkeypatch):
+    # the search probes (simulations) stay within the rating's bound, and the counts are
+    # those of the pinned demo answer (regression: our own output, see the test above)
+    import compat.checks as ck
+    import compat.sizing as sz
+    from loads.catalogue import demo_circuit
+    probed = []
+    real = sz._failing_checks
+
+    def recording(circuit, simulator, settings):
+        probed.append(circuit)
+        return real(circuit, simulator, settings)
+
+    monkeypatch.setattr(sz, "_failing_checks", recording)
+    c = dataclasses.replace(demo_circuit(), ranges=())
+    known = {c: tuple(x.id for x in evaluate(c).checks if x.status is Status.FAIL)}
+    out = sz.count_limits(c, known=known)
+    assert probed and all(ck.check_rating(p).status is not Status.FAIL for p in probed)
+    assert c not in probed                                   # the full check of the circuit is reused
+    assert [(v["fewest"], v["most"]) for v in out.values()] == [(2, 3), (None, 5)]
