@@ -577,7 +577,7 @@ def jacobian(t, y, F0, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F
 
 
 @numba.njit(cache=True, _nrt=False)
-def newton(t, z, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G, nstate):
+def newton(t, z, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G, nstate, project):
     """Solve M·z − c·F(t, z) = rhs with the factored iteration matrix A = M − c·J.
 
     Converged when the estimated remaining correction θ/(1 − θ)·‖Δ‖ (θ the contraction
@@ -587,15 +587,19 @@ def newton(t, z, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, 
     F holds F(t, z) on the differential rows, recovered from M·z − c·F = rhs, and zero on
     the algebraic rows (which the iteration has solved).
 
-    With the switch open, the dimmer's voltage is set after each correction to the exact
-    root of its own KCL row (``_open_node_voltage``), and the correction counted for it
-    is the change that makes: the iteration then moves the line current and the
-    capacitor voltages, and sees the dimmer's voltage as a function of them that only
-    steepens past the knee, on which Newton does not overshoot.  The root is the same one
-    the plain iteration would converge to, so the solution is unchanged."""
+    project (the callers' second try, where the plain iteration failed with the switch
+    open): the dimmer's voltage is set after each correction to the exact root of its
+    own KCL row (``_open_node_voltage``), and the correction counted for it is the change
+    that makes.  The iteration then moves the line current and the capacitor voltages,
+    and sees the dimmer's voltage as a function of them that only steepens past the
+    knee, on which Newton does not overshoot.  The root is the one the plain iteration
+    would converge to, so the solution is unchanged; it is only a second try because,
+    with little or no line inductance, the line current follows the dimmer's voltage so
+    closely that this split iteration can itself fail to contract where the plain one
+    converges."""
     n = z.shape[0]
     prev = 0.0
-    open_sw = S[SW_ON] == 0
+    open_sw = project and S[SW_ON] == 0
     for it in range(12):
         residual(t, z, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F)
         for i in range(n):
@@ -647,7 +651,7 @@ def make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, 
     # from no estimate and leaves the steps' one as it was
     eta = nstate[1]
     ok = False
-    for _ in range(3):
+    for k in range(3):
         residual(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F)
         jacobian(t, y, F, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F1)
         c = CONSISTENT_STEP_S
@@ -659,7 +663,9 @@ def make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, 
         if not lu_factor(A, piv):
             break
         nstate[1] = 1.0
-        if newton(t, y, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G, nstate):
+        # after a failed try, with the switch open, the open dimmer's voltage is solved
+        # in closed form inside the iteration (see newton)
+        if newton(t, y, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G, nstate, k > 0):
             ok = True
             break
     nstate[1] = eta
@@ -694,16 +700,30 @@ def trbdf2_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
         else:
             rhs[i] = 0.0
         yg[i] = y[i] + GAMMA * h * (F0[i] / M[i] if M[i] != 0.0 else 0.0)
-    if not newton(t + GAMMA * h, yg, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, Fg, G, nstate):
-        return np.inf
+    if not newton(t + GAMMA * h, yg, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, Fg, G, nstate,
+                  False):
+        # with the switch open, once more from the predictor with the open dimmer's
+        # voltage solved in closed form (see newton)
+        if S[SW_ON] != 0:
+            return np.inf
+        for i in range(n):
+            yg[i] = y[i] + GAMMA * h * (F0[i] / M[i] if M[i] != 0.0 else 0.0)
+        if not newton(t + GAMMA * h, yg, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, Fg, G,
+                      nstate, True):
+            return np.inf
     # BDF2 stage to t + h
     a1 = 1.0 / (GAMMA * (2.0 - GAMMA))
     a0 = (1.0 - GAMMA) ** 2 / (GAMMA * (2.0 - GAMMA))
     for i in range(n):
         rhs[i] = M[i] * (a1 * yg[i] - a0 * y[i])
         y1[i] = yg[i] + (yg[i] - y[i]) * (1.0 - GAMMA) / GAMMA
-    if not newton(t + h, y1, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F1, G, nstate):
-        return np.inf
+    if not newton(t + h, y1, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F1, G, nstate, False):
+        if S[SW_ON] != 0:
+            return np.inf
+        for i in range(n):
+            y1[i] = yg[i] + (yg[i] - y[i]) * (1.0 - GAMMA) / GAMMA
+        if not newton(t + h, y1, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F1, G, nstate, True):
+            return np.inf
     # error estimate, filtered through the iteration matrix
     for i in range(n):
         if M[i] != 0.0:
