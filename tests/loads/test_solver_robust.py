@@ -96,3 +96,28 @@ def test_the_reduced_random_circuit_runs_to_its_end():
     # solver's tolerance)
     assert hc.load_rms_v[-1] == pytest.approx(hc.load_rms_v[-2], rel=1e-2)
     assert math.isfinite(res.last_cycle()["load_rms_v"])
+
+
+@pytest.mark.regression
+def test_with_no_line_inductance_the_open_dimmer_still_solves():
+    """Our own case, pinned as a regression (no outside value): with no line inductance
+    the line current is algebraic and follows the dimmer's voltage through 42 mΩ, so the
+    closed-form dimmer voltage, used in every Newton iteration, made the iteration fail
+    to contract (this gave up at 9.5 ms); it is only Newton's second try.  A random legal
+    circuit of the robustness run: a trailing-edge dimmer and five electronic
+    transformers with 0.89 µF input capacitors, all figures invented."""
+    c = Circuit(
+        supply=Supply(voltage_v=240.0, frequency_hz=50.0, source_resistance_ohm=0.04248, source_inductance_h=0.0),
+        dimmer=Dimmer(edge="trailing", wiring="with-neutral", control="phase", rc_diac=None, rated_load_w=608.0,
+                      min_load_w=118.0, rated_transformer_va=27.8, rated_led_w=128.2, holding_current_a=50.66e-3,
+                      latching_current_a=134e-3, gate_window_s=138.4e-6, gate_drive="single-pulse",
+                      on_state_resistance_ohm=0.001102, commutating_di_dt_a_per_s=72.2e3,
+                      triac_turn_off_time_s=792.1e-6, choke_inductance_h=356.7e-6, self_supply_a=0.01564e-3,
+                      clamp_voltage_v=352.1, turn_off_time_s=6.631e-6, trip_delay_s=49.95e-6,
+                      min_firing_angle_deg=38.34, max_firing_angle_deg=175.8),
+        loads=[ElectronicTransformer(name="group 1", count=5, rated_voltage_v=240.0, rated_power_w=92.3,
+                                     rated_va=121.0, lamp_power_w=34.45, input_capacitance_f=892.4e-9)])
+    res = simulate(c, setting=1.0, start="steady", cycles=6, settle_lamps=True)
+    hc = res.half_cycles
+    # steady under a symmetric supply (1 %, as above)
+    assert hc.load_rms_v[-1] == pytest.approx(hc.load_rms_v[-2], rel=1e-2)
