@@ -327,17 +327,18 @@ def _open_dimmer_voltage(y, isw, P, IP):
 
 
 @numba.njit(cache=True, _nrt=False)
-def _open_node_voltage(z, P, IP, S):
+def _open_node_voltage(z, il0, gl, P, IP, S):
     """The voltage across an open switch that satisfies the dimmer's KCL row of the
-    residual exactly for the other unknowns in z (line and switch current, snubber and
-    timing capacitor voltages, the clamp's state).  The row is monotone and piecewise
-    linear in v_d (the self-supply is linear within its knee, constant past it), so this
-    is its closed-form root.  Newton on that row alone cycles: from past the knee its
+    residual exactly, with the line current il0 − gl·v_d (gl = 0: the line current is
+    taken as it is) and the other unknowns from z (switch current, snubber and timing
+    capacitor voltages, the clamp's state).  The row is monotone and piecewise linear in
+    v_d (the self-supply is linear within its knee, constant past it), so this is its
+    closed-form root.  Newton on that row alone cycles: from past the knee its
     slope is only the snubber's and the leakage's conductance, each correction
     overshoots to the other polarity's side of the knee and back (±40 V and more, for
     ever, with a 25 kΩ snubber and a 1.7 mA self-supply); see ``newton``."""
-    g = P[GLEAK]
-    i0 = z[IL] - z[ISW]
+    g = P[GLEAK] + gl
+    i0 = il0 - z[ISW]
     if P[CSN] > 0.0:
         g += 1.0 / P[RSN]
         i0 += z[VSN] / P[RSN]
@@ -587,30 +588,38 @@ def newton(t, z, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, 
     F holds F(t, z) on the differential rows, recovered from M·z − c·F = rhs, and zero on
     the algebraic rows (which the iteration has solved).
 
-    project (the callers' second try, where the plain iteration failed with the switch
-    open): the dimmer's voltage is set after each correction to the exact root of its
-    own KCL row (``_open_node_voltage``), and the correction counted for it is the change
-    that makes.  The iteration then moves the line current and the capacitor voltages,
-    and sees the dimmer's voltage as a function of them that only steepens past the
-    knee, on which Newton does not overshoot.  The root is the one the plain iteration
-    would converge to, so the solution is unchanged; it is only a second try because,
-    with little or no line inductance, the line current follows the dimmer's voltage so
-    closely that this split iteration can itself fail to contract where the plain one
-    converges."""
+    project (with the switch open): after each correction the dimmer's voltage and the
+    line current are set to the exact joint solution of their two rows, the dimmer's KCL
+    and the line's M·i_L − c·(e − R_s·i_L − v_d − v_b) = rhs, for the other unknowns as
+    they stand (``_open_node_voltage``); the corrections counted for them are the changes
+    that makes.  The iteration then moves the load and capacitor voltages only.  Past
+    the self-supply's knee the dimmer's row has only the snubber's, timing branch's or
+    leakage's slope: plain Newton on it swung the voltage to the other side of the knee
+    and back for ever, or stopped with a residual of nanoamps that, through a leakage of
+    10 nS, left the voltage hundreds of volts off (the clamp then conducted where it
+    does not).  The solution is the one the plain iteration converges to where it does;
+    the callers try the plain iteration after a projected one fails."""
     n = z.shape[0]
     prev = 0.0
-    open_sw = project and S[SW_ON] == 0
+    open_sw = project and S[SW_ON] == 0 and (M[IL] > 0.0 or P[RS] > 0.0)
+    e = P[VPK] * math.sin(P[OMEGA] * t)
     for it in range(12):
         residual(t, z, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F)
         for i in range(n):
             G[i] = M[i] * z[i] - c * F[i] - rhs[i]
         lu_solve(A, piv, G)
         vd_old = z[VD]
+        il_old = z[IL]
         for i in range(n):
             z[i] -= G[i]
         if open_sw:
-            z[VD] = _open_node_voltage(z, P, IP, S)
+            d = M[IL] + c * P[RS]
+            gl = c / d
+            il0 = (rhs[IL] + c * (e - z[VB])) / d
+            z[VD] = _open_node_voltage(z, il0, gl, P, IP, S)
+            z[IL] = il0 - gl * z[VD]
             G[VD] = vd_old - z[VD]
+            G[IL] = il_old - z[IL]
         nrm = 0.0
         for i in range(n):
             r = G[i] * wt[i]
@@ -663,9 +672,9 @@ def make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, 
         if not lu_factor(A, piv):
             break
         nstate[1] = 1.0
-        # after a failed try, with the switch open, the open dimmer's voltage is solved
-        # in closed form inside the iteration (see newton)
-        if newton(t, y, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G, nstate, k > 0):
+        # with the switch open the open dimmer's voltage and the line current are solved
+        # in closed form inside the iteration (see newton); the second try is plain
+        if newton(t, y, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G, nstate, k != 1):
             ok = True
             break
     nstate[1] = eta
@@ -700,16 +709,16 @@ def trbdf2_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
         else:
             rhs[i] = 0.0
         yg[i] = y[i] + GAMMA * h * (F0[i] / M[i] if M[i] != 0.0 else 0.0)
+    # with the switch open the dimmer's voltage and the line current are solved in closed
+    # form inside the iteration (see newton); where that fails, once more without
     if not newton(t + GAMMA * h, yg, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, Fg, G, nstate,
-                  False):
-        # with the switch open, once more from the predictor with the open dimmer's
-        # voltage solved in closed form (see newton)
+                  True):
         if S[SW_ON] != 0:
             return np.inf
         for i in range(n):
             yg[i] = y[i] + GAMMA * h * (F0[i] / M[i] if M[i] != 0.0 else 0.0)
         if not newton(t + GAMMA * h, yg, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, Fg, G,
-                      nstate, True):
+                      nstate, False):
             return np.inf
     # BDF2 stage to t + h
     a1 = 1.0 / (GAMMA * (2.0 - GAMMA))
@@ -717,12 +726,12 @@ def trbdf2_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
     for i in range(n):
         rhs[i] = M[i] * (a1 * yg[i] - a0 * y[i])
         y1[i] = yg[i] + (yg[i] - y[i]) * (1.0 - GAMMA) / GAMMA
-    if not newton(t + h, y1, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F1, G, nstate, False):
+    if not newton(t + h, y1, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F1, G, nstate, True):
         if S[SW_ON] != 0:
             return np.inf
         for i in range(n):
             y1[i] = yg[i] + (yg[i] - y[i]) * (1.0 - GAMMA) / GAMMA
-        if not newton(t + h, y1, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F1, G, nstate, True):
+        if not newton(t + h, y1, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F1, G, nstate, False):
             return np.inf
     # error estimate, filtered through the iteration matrix
     for i in range(n):
