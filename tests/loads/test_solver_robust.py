@@ -102,8 +102,9 @@ def test_the_reduced_random_circuit_runs_to_its_end():
 def test_with_no_line_inductance_the_open_dimmer_still_solves():
     """Our own case, pinned as a regression (no outside value): with no line inductance
     the line current is algebraic and follows the dimmer's voltage through 42 mΩ, so the
-    closed-form dimmer voltage, used in every Newton iteration, made the iteration fail
-    to contract (this gave up at 9.5 ms); it is only Newton's second try.  A random legal
+    closed-form dimmer voltage alone, used in every Newton iteration, made the iteration
+    fail to contract (this gave up at 9.5 ms); the line current is now solved with it
+    (see loads.kernel.newton).  A random legal
     circuit of the robustness run: a trailing-edge dimmer and five electronic
     transformers with 0.89 µF input capacitors, all figures invented."""
     c = Circuit(
