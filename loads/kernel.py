@@ -327,6 +327,36 @@ def _open_dimmer_voltage(y, isw, P, IP):
 
 
 @numba.njit(cache=True, _nrt=False)
+def _open_node_voltage(z, il0, gl, P, IP, S):
+    """The voltage across an open switch that satisfies the dimmer's KCL row of the
+    residual exactly, with the line current il0 − gl·v_d (gl = 0: the line current is
+    taken as it is) and the other unknowns from z (switch current, snubber and timing
+    capacitor voltages, the clamp's state).  The row is monotone and piecewise linear in
+    v_d (the self-supply is linear within its knee, constant past it), so this is its
+    closed-form root.  Newton on that row alone cycles: from past the knee its
+    slope is only the snubber's and the leakage's conductance, each correction
+    overshoots to the other polarity's side of the knee and back (±40 V and more, for
+    ever, with a 25 kΩ snubber and a 1.7 mA self-supply); see ``newton``."""
+    g = P[GLEAK] + gl
+    i0 = il0 - z[ISW]
+    if P[CSN] > 0.0:
+        g += 1.0 / P[RSN]
+        i0 += z[VSN] / P[RSN]
+    if IP[CONTROL] == RC_DIAC:
+        g += 1.0 / P[RT]
+        i0 += z[VT] / P[RT]
+    if IP[EDGE] == TRAILING and S[CLAMP] != 0:
+        g += 1.0 / P[RCL]
+        i0 += S[CLAMP] * P[VCL] / P[RCL]
+    ks = P[ISS] / SELF_SUPPLY_KNEE_V
+    vd = i0 / (g + ks)
+    if abs(vd) > SELF_SUPPLY_KNEE_V:
+        sign = 1.0 if vd > 0.0 else -1.0
+        vd = (i0 - sign * P[ISS]) / g
+    return vd
+
+
+@numba.njit(cache=True, _nrt=False)
 def _turn_off_voltage(t, P, Q):
     """Voltage across a trailing-edge switch turning off: from where it began, rising at
     the set slope in the direction of the current it carried."""
@@ -548,7 +578,7 @@ def jacobian(t, y, F0, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F
 
 
 @numba.njit(cache=True, _nrt=False)
-def newton(t, z, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G, nstate):
+def newton(t, z, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G, nstate, project):
     """Solve M·z − c·F(t, z) = rhs with the factored iteration matrix A = M − c·J.
 
     Converged when the estimated remaining correction θ/(1 − θ)·‖Δ‖ (θ the contraction
@@ -556,17 +586,42 @@ def newton(t, z, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, 
     first correction θ/(1 − θ) is the one carried in nstate[1] from earlier solves, and
     the test is ten times stricter (NEWTON_TOL_FIRST).  On return
     F holds F(t, z) on the differential rows, recovered from M·z − c·F = rhs, and zero on
-    the algebraic rows (which the iteration has solved)."""
+    the algebraic rows (which the iteration has solved).
+
+    project (with the switch open): after each correction the dimmer's voltage and the
+    line current are set to the exact joint solution of their two rows, the dimmer's KCL
+    and the line's M·i_L − c·(e − R_s·i_L − v_d − v_b) = rhs, for the other unknowns as
+    they stand (``_open_node_voltage``); the corrections counted for them are the changes
+    that makes.  The iteration then moves the load and capacitor voltages only.  Past
+    the self-supply's knee the dimmer's row has only the snubber's, timing branch's or
+    leakage's slope: plain Newton on it swung the voltage to the other side of the knee
+    and back for ever, or stopped with a residual of nanoamps that, through a leakage of
+    10 nS, left the voltage hundreds of volts off (the clamp then conducted where it
+    does not).  The solution is the one the plain iteration converges to where it does;
+    the callers try the plain iteration after a projected one fails."""
     n = z.shape[0]
     prev = 0.0
+    open_sw = project and S[SW_ON] == 0 and (M[IL] > 0.0 or P[RS] > 0.0)
+    e = P[VPK] * math.sin(P[OMEGA] * t)
     for it in range(12):
         residual(t, z, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F)
         for i in range(n):
             G[i] = M[i] * z[i] - c * F[i] - rhs[i]
         lu_solve(A, piv, G)
-        nrm = 0.0
+        vd_old = z[VD]
+        il_old = z[IL]
         for i in range(n):
             z[i] -= G[i]
+        if open_sw:
+            d = M[IL] + c * P[RS]
+            gl = c / d
+            il0 = (rhs[IL] + c * (e - z[VB])) / d
+            z[VD] = _open_node_voltage(z, il0, gl, P, IP, S)
+            z[IL] = il0 - gl * z[VD]
+            G[VD] = vd_old - z[VD]
+            G[IL] = il_old - z[IL]
+        nrm = 0.0
+        for i in range(n):
             r = G[i] * wt[i]
             nrm += r * r
         nrm = math.sqrt(nrm / n)
@@ -605,7 +660,7 @@ def make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, 
     # from no estimate and leaves the steps' one as it was
     eta = nstate[1]
     ok = False
-    for _ in range(3):
+    for k in range(3):
         residual(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F)
         jacobian(t, y, F, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F1)
         c = CONSISTENT_STEP_S
@@ -617,7 +672,9 @@ def make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, 
         if not lu_factor(A, piv):
             break
         nstate[1] = 1.0
-        if newton(t, y, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G, nstate):
+        # with the switch open the open dimmer's voltage and the line current are solved
+        # in closed form inside the iteration (see newton); the second try is plain
+        if newton(t, y, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G, nstate, k != 1):
             ok = True
             break
     nstate[1] = eta
@@ -652,16 +709,30 @@ def trbdf2_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
         else:
             rhs[i] = 0.0
         yg[i] = y[i] + GAMMA * h * (F0[i] / M[i] if M[i] != 0.0 else 0.0)
-    if not newton(t + GAMMA * h, yg, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, Fg, G, nstate):
-        return np.inf
+    # with the switch open the dimmer's voltage and the line current are solved in closed
+    # form inside the iteration (see newton); where that fails, once more without
+    if not newton(t + GAMMA * h, yg, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, Fg, G, nstate,
+                  True):
+        if S[SW_ON] != 0:
+            return np.inf
+        for i in range(n):
+            yg[i] = y[i] + GAMMA * h * (F0[i] / M[i] if M[i] != 0.0 else 0.0)
+        if not newton(t + GAMMA * h, yg, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, Fg, G,
+                      nstate, False):
+            return np.inf
     # BDF2 stage to t + h
     a1 = 1.0 / (GAMMA * (2.0 - GAMMA))
     a0 = (1.0 - GAMMA) ** 2 / (GAMMA * (2.0 - GAMMA))
     for i in range(n):
         rhs[i] = M[i] * (a1 * yg[i] - a0 * y[i])
         y1[i] = yg[i] + (yg[i] - y[i]) * (1.0 - GAMMA) / GAMMA
-    if not newton(t + h, y1, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F1, G, nstate):
-        return np.inf
+    if not newton(t + h, y1, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F1, G, nstate, True):
+        if S[SW_ON] != 0:
+            return np.inf
+        for i in range(n):
+            y1[i] = yg[i] + (yg[i] - y[i]) * (1.0 - GAMMA) / GAMMA
+        if not newton(t + h, y1, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F1, G, nstate, False):
+            return np.inf
     # error estimate, filtered through the iteration matrix
     for i in range(n):
         if M[i] != 0.0:
