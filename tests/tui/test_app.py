@@ -274,7 +274,8 @@ async def test_check_details_and_safety_cautions():
     async with app.run_test(size=SIZE) as pilot:
         screen = await settled(pilot)
         strip = screen.query_one(CautionStrip)
-        assert "-alarm" in strip.classes and "inrush" in str(strip.render())
+        await wait_for(pilot, lambda: "-alarm" in strip.classes)      # the strip follows the result's arrival
+        assert "inrush" in str(strip.render())
         await pilot.press("f4")
         await pilot.pause()
         await pilot.press("down", "down", "down", "enter")           # rating, minimum-load, holding, inrush
