@@ -41,8 +41,8 @@ import numpy as np
 
 from compat import breaker_band, derating, sizing
 from compat import checks as ck
-from compat.evaluate import (ANALYSED_CYCLES, CYCLES_PER_POINT, OFF_ANALYSED_CYCLES, OFF_CYCLES, OFF_SAMPLES_PER_CYCLE,
-                             SWEEP_SAMPLES_PER_CYCLE, combine, gather, judge, set_path, settings_grid, walk)
+from compat.evaluate import (OFF_ANALYSED_CYCLES, OFF_CYCLES, OFF_SAMPLES_PER_CYCLE, combine, gather, judge,
+                             set_path, settings_grid, turn, walk)
 from compat.runs import SettingRun
 from compat.report import CheckResult, Report, Status
 from compat.runs import Evidence
@@ -329,20 +329,7 @@ FIRE_STEPS = 8
 
 def _turn(circuit: Circuit, run: SettingRun, settings, sim, cancel=None) -> list[SettingRun]:
     """The knob turned on from ``run`` through ``settings``, its state carried."""
-    weights = sim.reference_light_weights(circuit)
-    wsum = float(np.sum(weights))
-    out, state = [], run.result.final_state
-    for s in settings:
-        if cancel is not None and cancel.is_set():
-            from compat.evaluate import Cancelled
-            raise Cancelled()
-        res = sim.simulate(circuit, setting=s, cycles=CYCLES_PER_POINT, start=state,
-                           samples_per_cycle=SWEEP_SAMPLES_PER_CYCLE, settle_lamps=True)
-        state = res.final_state
-        point = sim.sweep_point(res, run.direction, s, ANALYSED_CYCLES, weights, wsum)
-        out.append(SettingRun(direction=run.direction, setting=s, result=res, analysed_cycles=ANALYSED_CYCLES,
-                              point=point))
-    return out
+    return turn(circuit, run.result.final_state, run.direction, settings, sim, cancel=cancel)
 
 
 def firing_thresholds(circuit: Circuit, ev: Evidence, sim, cancel=None) -> tuple[float | None, float | None]:

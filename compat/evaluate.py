@@ -62,13 +62,20 @@ def settings_grid(n: int) -> list[float]:
 
 
 def walk(circuit: Circuit, settings: list[float], direction: str, sim, *, tick=None, cancel=None) -> tuple[SettingRun, ...]:
-    """The sweep in one direction, keeping every setting's result."""
+    """The sweep in one direction, keeping every setting's result: down from the steady
+    state at full, up from the lamp-out state."""
     order = sorted(settings, reverse=(direction == "down"))
+    state: object = "steady" if direction == "down" else "off"
+    return tuple(turn(circuit, state, direction, order, sim, tick=tick, cancel=cancel))
+
+
+def turn(circuit: Circuit, state, direction: str, settings, sim, *, tick=None, cancel=None) -> list[SettingRun]:
+    """The knob turned through ``settings`` in the order given, from ``state`` (a start
+    or a run's final state), the circuit's state carried from one setting to the next."""
     weights = sim.reference_light_weights(circuit)
     wsum = float(np.sum(weights))
-    state: object = "steady" if direction == "down" else "off"
     runs = []
-    for s in order:
+    for s in settings:
         if cancel is not None and cancel.is_set():
             raise Cancelled()
         res = sim.simulate(circuit, setting=s, cycles=CYCLES_PER_POINT, start=state,
@@ -78,7 +85,7 @@ def walk(circuit: Circuit, settings: list[float], direction: str, sim, *, tick=N
         runs.append(SettingRun(direction=direction, setting=s, result=res, analysed_cycles=ANALYSED_CYCLES, point=point))
         if tick:
             tick()
-    return tuple(runs)
+    return runs
 
 
 def gather(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress=None, cancel=None, simulator=None) -> Evidence:
