@@ -96,7 +96,7 @@ MAX_LOSS_SHARE = 0.15
 INPUT_CAPACITANCE_F = (10e-9, 150e-9)
 # Bleeder of a lamp sold as dimmable (engineering choice: from none to the archetypes'
 # 10 mA at 230 V and 20 mA at 120 V, i.e. about 2.3 W / V_rated of constant current).
-BLEEDER_W_PER_V = 2.3
+BLEEDER_SCALE_W = 2.3
 # A lamp's converter starts at about a fifth of its rated peak (engineering choice, as
 # loads.driver and the archetypes: 60 V at 230 V, 30 V at 120 V).
 START_FRACTION_OF_PEAK = 0.185
@@ -431,7 +431,7 @@ def _estimate(readings: Readings) -> Estimate:
     # per-unit bridge input power a = mean(√2·sin θ·j) (≥ 1: the converter's power plus losses)
     a = (tab.j * (math.sqrt(2.0) * sin_t)).mean(axis=1)
     loss_share = 1.0 - 1.0 / a
-    bleeder_max = BLEEDER_W_PER_V / readings.rated_voltage_v if readings.dimmable else 0.0
+    bleeder_max = BLEEDER_SCALE_W / readings.rated_voltage_v if readings.dimmable else 0.0
     bleeders = np.array([0.0, 0.25, 0.5, 0.75, 1.0]) * bleeder_max if bleeder_max > 0 else np.array([0.0])
     cins = np.geomspace(*INPUT_CAPACITANCE_F, 5)
     bands = readings.bands()
@@ -514,8 +514,9 @@ def _estimate(readings: Readings) -> Estimate:
         bl_step = bleeder_max * 0.25
         ranges["bleeder_a"] = _outward(max(bl_all.min() - bl_step, 0.0), min(bl_all.max() + bl_step, bleeder_max))
         fixed["bleeder_kind"] = "constant-current"
-        basis["bleeder_a"] = ("not readable: from none to about 2.3 W/V of constant current, as the archetypes "
-                              "(engineering choice)" + ("; narrowed by the readings" if measured else ""))
+        basis["bleeder_a"] = ("not readable: from none to a constant current of 2.3 W over the rated voltage "
+                              f"({1000 * bleeder_max:.0f} mA here), as the archetypes (engineering choice)"
+                              + ("; narrowed by the readings" if measured else ""))
     else:
         fixed["bleeder_a"] = 0.0
         basis["bleeder_a"] = "none: a lamp not sold as dimmable has no bleeder (common practice, no source)"
