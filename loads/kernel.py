@@ -328,8 +328,8 @@ def _open_dimmer_voltage(y, isw, P, IP):
 
 @numba.njit(cache=True, _nrt=False)
 def _open_node_voltage(z, il0, gl, P, IP, S):
-    """The voltage across an open switch that satisfies the dimmer's KCL row of the
-    residual exactly, with the line current il0 − gl·v_d (gl = 0: the line current is
+    """The voltage across an open switch (or an on one behind its choke, whose current is
+    then a state) that satisfies the dimmer's KCL row of the residual exactly, with the line current il0 − gl·v_d (gl = 0: the line current is
     taken as it is) and the other unknowns from z (switch current, snubber and timing
     capacitor voltages, the clamp's state).  The row is monotone and piecewise linear in
     v_d (the self-supply is linear within its knee, constant past it), so this is its
@@ -578,6 +578,15 @@ def jacobian(t, y, F0, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, J, work, F
 
 
 @numba.njit(cache=True, _nrt=False)
+def _choke_projects(P, IP, S, M):
+    """Whether an on switch behind its choke has its voltage set to the dimmer's KCL root
+    (see newton): only where the row has the self-supply's knee to cycle across and a
+    slope past it other than the leakage's (snubber or timing branch)."""
+    return (S[SW_ON] == 1 and M[ISW] > 0.0 and P[ISS] > 0.0
+            and (P[CSN] > 0.0 or IP[CONTROL] == RC_DIAC))
+
+
+@numba.njit(cache=True, _nrt=False)
 def newton(t, z, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G, nstate, project):
     """Solve M·z − c·F(t, z) = rhs with the factored iteration matrix A = M − c·J.
 
@@ -602,6 +611,15 @@ def newton(t, z, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, 
     n = z.shape[0]
     prev = 0.0
     open_sw = project and S[SW_ON] == 0 and (M[IL] > 0.0 or P[RS] > 0.0)
+    # an on switch behind its choke: the switch current is a state, so the dimmer's voltage
+    # is again held by its KCL row alone, and plain Newton cycles across the self-supply's
+    # knee the same way (an rc-diac's triac firing at −38 V with a 51 mA self-supply and
+    # 3.3 kΩ timing branch: ±100–300 V in turn); it is set to that row's root.  The
+    # callers try this only after the plain iteration fails: with the line current and
+    # the switch current held, the root amplifies their residuals by 1/G_leak where
+    # leakage is the row's only slope (a leading-edge dimmer with neutral), so it is
+    # used only where a snubber or timing branch gives the row slope (_choke_projects)
+    choke_on = project and _choke_projects(P, IP, S, M)
     e = P[VPK] * math.sin(P[OMEGA] * t)
     for it in range(12):
         residual(t, z, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, F)
@@ -620,6 +638,9 @@ def newton(t, z, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, 
             z[IL] = il0 - gl * z[VD]
             G[VD] = vd_old - z[VD]
             G[IL] = il_old - z[IL]
+        elif choke_on:
+            z[VD] = _open_node_voltage(z, z[IL], 0.0, P, IP, S)
+            G[VD] = vd_old - z[VD]
         nrm = 0.0
         for i in range(n):
             r = G[i] * wt[i]
@@ -673,8 +694,10 @@ def make_consistent(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, 
             break
         nstate[1] = 1.0
         # with the switch open the open dimmer's voltage and the line current are solved
-        # in closed form inside the iteration (see newton); the second try is plain
-        if newton(t, y, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G, nstate, k != 1):
+        # in closed form inside the iteration (see newton); the second try is plain.  With
+        # it on behind its choke only the second try projects (see trbdf2_step)
+        proj = (k != 1) if S[SW_ON] == 0 else (k == 1)
+        if newton(t, y, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F, G, nstate, proj):
             ok = True
             break
     nstate[1] = eta
@@ -710,15 +733,20 @@ def trbdf2_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
             rhs[i] = 0.0
         yg[i] = y[i] + GAMMA * h * (F0[i] / M[i] if M[i] != 0.0 else 0.0)
     # with the switch open the dimmer's voltage and the line current are solved in closed
-    # form inside the iteration (see newton); where that fails, once more without
+    # form inside the iteration (see newton); where that fails, once more without.  With
+    # the switch on behind its choke the plain iteration comes first, the projected one
+    # second (see newton: its closed form alone amplifies the line's and the choke's
+    # residuals through a bare leakage)
+    open_first = S[SW_ON] == 0
+    choke_on = _choke_projects(P, IP, S, M)
     if not newton(t + GAMMA * h, yg, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, Fg, G, nstate,
-                  True):
-        if S[SW_ON] != 0:
+                  open_first):
+        if not (open_first or choke_on):
             return np.inf
         for i in range(n):
             yg[i] = y[i] + GAMMA * h * (F0[i] / M[i] if M[i] != 0.0 else 0.0)
         if not newton(t + GAMMA * h, yg, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, Fg, G,
-                      nstate, False):
+                      nstate, choke_on):
             return np.inf
     # BDF2 stage to t + h
     a1 = 1.0 / (GAMMA * (2.0 - GAMMA))
@@ -726,12 +754,14 @@ def trbdf2_step(t, h, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol,
     for i in range(n):
         rhs[i] = M[i] * (a1 * yg[i] - a0 * y[i])
         y1[i] = yg[i] + (yg[i] - y[i]) * (1.0 - GAMMA) / GAMMA
-    if not newton(t + h, y1, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F1, G, nstate, True):
-        if S[SW_ON] != 0:
+    if not newton(t + h, y1, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F1, G, nstate,
+                  open_first):
+        if not (open_first or choke_on):
             return np.inf
         for i in range(n):
             y1[i] = yg[i] + (yg[i] - y[i]) * (1.0 - GAMMA) / GAMMA
-        if not newton(t + h, y1, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F1, G, nstate, False):
+        if not newton(t + h, y1, rhs, c, M, A, piv, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, wt, F1, G, nstate,
+                      choke_on):
             return np.inf
     # error estimate, filtered through the iteration matrix
     for i in range(n):
