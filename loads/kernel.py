@@ -304,17 +304,23 @@ def _diac_current(y, P, S):
 
 
 @numba.njit(cache=True, _nrt=False)
+def _branch_paths(y, P, IP, g, i):
+    """The dimmer's current balance, linear in its voltage v_d (draws g·v_d − i), with the
+    snubber's and the rc-diac timing branch's shares added to g [S] and i [A]."""
+    if P[CSN] > 0.0:
+        g += 1.0 / P[RSN]
+        i += y[VSN] / P[RSN]
+    if IP[CONTROL] == RC_DIAC:
+        g += 1.0 / P[RT]
+        i += y[VT] / P[RT]
+    return g, i
+
+
+@numba.njit(cache=True, _nrt=False)
 def _open_dimmer_voltage(y, isw, P, IP):
     """Voltage across the open (or ramping) dimmer that its non-clamp paths need to carry
     the line current less the switch's isw (the self-supply taken at its linear slope)."""
-    g = P[GLEAK] + P[ISS] / SELF_SUPPLY_KNEE_V
-    i0 = y[IL] - isw
-    if P[CSN] > 0.0:
-        g += 1.0 / P[RSN]
-        i0 += y[VSN] / P[RSN]
-    if IP[CONTROL] == RC_DIAC:
-        g += 1.0 / P[RT]
-        i0 += y[VT] / P[RT]
+    g, i0 = _branch_paths(y, P, IP, P[GLEAK] + P[ISS] / SELF_SUPPLY_KNEE_V, y[IL] - isw)
     vd = i0 / g
     if P[ISS] > 0.0 and abs(vd) > SELF_SUPPLY_KNEE_V:
         # past its knee the self-supply draws a constant current, no more: the voltage
@@ -337,14 +343,7 @@ def _open_node_voltage(z, il0, gl, P, IP, S):
     slope is only the snubber's and the leakage's conductance, each correction
     overshoots to the other polarity's side of the knee and back (±40 V and more, for
     ever, with a 25 kΩ snubber and a 1.7 mA self-supply); see ``newton``."""
-    g = P[GLEAK] + gl
-    i0 = il0 - z[ISW]
-    if P[CSN] > 0.0:
-        g += 1.0 / P[RSN]
-        i0 += z[VSN] / P[RSN]
-    if IP[CONTROL] == RC_DIAC:
-        g += 1.0 / P[RT]
-        i0 += z[VT] / P[RT]
+    g, i0 = _branch_paths(z, P, IP, P[GLEAK] + gl, il0 - z[ISW])
     if IP[EDGE] == TRAILING and S[CLAMP] != 0:
         g += 1.0 / P[RCL]
         i0 += S[CLAMP] * P[VCL] / P[RCL]
