@@ -14,7 +14,7 @@ from collections.abc import Sequence
 
 import numpy as np
 
-from compat import breaker_band, derating, flicker, harmonics, reference_lamp
+from compat import breaker_band, derating, flicker, harmonics, phase_sense, reference_lamp
 from compat.notation import check_figure, setting_text
 from compat.perception import cie_lightness, perceived_brightness
 from compat.report import CheckResult, Status
@@ -370,6 +370,18 @@ def tripped_half_cycles(circuit: Circuit, run: SettingRun) -> int:
     return int(np.sum(run.half_cycles.peak_current_a >= TRIP_REACHED * d.trip_current_a))
 
 
+def _unseen_first(circuit: Circuit, runs: Sequence[SettingRun]) -> tuple[tuple[str | None, str], ...]:
+    """The remedy option for lamps that cannot see the phase (``compat.phase_sense``),
+    to lead a remedy's options where they apply; none otherwise."""
+    return ((None, phase_sense.REMEDY),) if phase_sense.unseen(circuit, runs) is not None else ()
+
+
+def _trip_remedy(circuit: Circuit, runs: Sequence[SettingRun]) -> str:
+    """What to change when the dimmer's protection trips on the lamps' current."""
+    return _offer(circuit, *_unseen_first(circuit, runs), (None, "fewer capacitor-input lamps on this dimmer"),
+                  (None, "a dimmer with a higher rating (and trip level)"))
+
+
 def protection_summary(circuit: Circuit, runs: Sequence[SettingRun]) -> tuple[str, float] | None:
     """One sentence on the dimmer's protection tripping, and the share of settings at
     which it did [1]; None if it never did."""
@@ -556,13 +568,13 @@ def check_repetitive_peak(circuit: Circuit, runs: Sequence[SettingRun]) -> Check
         details["protection_trips"] = True
         return _res("repetitive-peak", Status.FAIL, peak, limit, "A", min(m, 0.0),
                     f"{trips[0]}; the current peaks reach its {d.trip_current_a:.1f} A trip level (crest factor {crest:.1f}).",
-                    remedy="Fewer capacitor-input lamps on this dimmer, or a dimmer with a higher rating (and trip level).",
+                    remedy=_trip_remedy(circuit, runs),
                     sources=("TRADE",), safety=True, details=details)
     if peak > limit:
         return _res("repetitive-peak", Status.FAIL, peak, limit, "A", m,
                     f"At {_fmt_setting(worst)} the switch current peaks at {peak:.1f} A every half-cycle "
                     f"(crest factor {crest:.1f}), above its {limit:.0f} A {what}.",
-                    remedy=_offer(circuit, (None, "fewer capacitor-input lamps on this dimmer"),
+                    remedy=_offer(circuit, *_unseen_first(circuit, runs), (None, "fewer capacitor-input lamps on this dimmer"),
                                   ("leading", "a trailing-edge dimmer"), ("leading", "a larger choke")),
                     sources=("TRADE",), safety=True, details=details)
     return _res("repetitive-peak", Status.PASS, peak, limit, "A", m,
@@ -950,7 +962,8 @@ def check_turn_off_surge(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckR
                "clamp_power_w": p_clamp, "clamp_power_limit_w": CLAMP_MEAN_POWER_W}
     inductive = any(load_character(g, circuit.supply.frequency_hz) == "inductive" for g in circuit.loads)
     remedy = ("Use a leading-edge dimmer for iron-core transformer loads." if inductive else
-              "The current cut is the lamps' own surge in the wiring's inductance: put fewer capacitor-input lamps on this dimmer.")
+              _offer(circuit, *_unseen_first(circuit, runs), (None, "fewer capacitor-input lamps on this dimmer"),
+                     lead="The current cut is the lamps' own surge in the wiring's inductance; the cure is "))
     absorbed = (f"; its clamp absorbs {p_clamp:.2f} W on average at {_fmt_setting(w_clamp)}, against the "
                 f"{CLAMP_MEAN_POWER_W:.2f} W a varistor of this kind is rated for" if p_clamp > 0 else "")
     if peak >= CLAMP_REACHED * clamp or p_clamp > CLAMP_MEAN_POWER_W:
@@ -1003,19 +1016,21 @@ def check_dimming_range(circuit: Circuit, down: Sequence[SettingRun], up: Sequen
     trips = protection_summary(circuit, list(down) + list(up))
     if trips is not None:
         details["protection_trips"] = True
+    unseen = details["phase_unseen"] = phase_sense.unseen(circuit, list(down) + list(up))
+    why = (" " + phase_sense.sentence(unseen) + ".") if unseen is not None else ""
     # Engineering choice: protection acting at half the settings or more leaves no
     # dimming range worth the name; at fewer, the range is judged on the rest, with a caution.
     if trips is not None and trips[1] >= 0.5:
         return _res("dimming-range", Status.FAIL, 0.0, 100 * DIM_TARGET_LOW, "%", None,
-                    trips[0] + "; there is no usable dimming range.",
-                    remedy="Fewer capacitor-input lamps on this dimmer, or a dimmer with a higher rating (and trip level).",
+                    trips[0] + "; there is no usable dimming range." + why,
+                    remedy=_trip_remedy(circuit, list(down) + list(up)),
                     sources=("LRC_ASSIST_DIMMING",), details=details)
     if not stable_lit:
-        why = ("See latching and holding: the dimmer does not work with this load." if circuit.dimmer.edge is Edge.LEADING
-               else "The lamps do not run steadily on this dimmer at any setting: try a leading-edge dimmer or other lamps.")
+        cure = ("See latching and holding: the dimmer does not work with this load." if circuit.dimmer.edge is Edge.LEADING
+                else "The lamps do not run steadily on this dimmer at any setting: try a leading-edge dimmer or other lamps.")
         return _res("dimming-range", Status.FAIL, 0.0, 100 * DIM_TARGET_LOW, "%", None,
-                    "There is no setting at which the lamps give stable light.",
-                    remedy=why, sources=("LRC_ASSIST_DIMMING",), details=details)
+                    "There is no setting at which the lamps give stable light." + why,
+                    remedy=cure, sources=("LRC_ASSIST_DIMMING",), details=details)
     low = min(stable_lit, key=lambda row: row["light_fraction"])
     high = max(stable_lit, key=lambda row: row["light_fraction"])
     # drop-out: the first setting in the down sweep at which the lamps go dark after being lit
@@ -1065,10 +1080,12 @@ def check_dimming_range(circuit: Circuit, down: Sequence[SettingRun], up: Sequen
         problems.append("they do not reach 90 % of full light")
     if problems:
         return _res("dimming-range", Status.CAUTION, 100 * lowv, 100 * target, "%", m,
-                    msg[:-1] + "; " + " and ".join(problems) + ".",
-                    remedy="A dimmer matched to these lamps (edge, minimum load) usually widens the range.",
+                    msg[:-1] + "; " + " and ".join(problems) + "." + why,
+                    remedy=("Lamps or drivers with a bleeder (made for this dimmer's edge), or a dimmer matched to "
+                            "these lamps (edge, minimum load), usually widen the range." if unseen is not None else
+                            "A dimmer matched to these lamps (edge, minimum load) usually widens the range."),
                     sources=("LRC_ASSIST_DIMMING", "IES_HANDBOOK"), details=details)
-    return _res("dimming-range", Status.PASS, 100 * lowv, 100 * target, "%", m, msg,
+    return _res("dimming-range", Status.PASS, 100 * lowv, 100 * target, "%", m, msg + why,
                 sources=("LRC_ASSIST_DIMMING", "IES_HANDBOOK"), details=details)
 
 
@@ -1222,7 +1239,9 @@ def check_dissipation(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResu
                     + (f" ({details['turn_off_w'] + details['clamp_w']:.1f} W of it from cutting the current at each "
                        "turn-off)" if details["turn_off_w"] + details["clamp_w"] > 0.05 * p else "")
                     + f", more than the {allowance:.1f} W the dimmer box is built to shed.",
-                    remedy="Use a dimmer with a higher rating or reduce the load.",
+                    remedy=("Use " + phase_sense.REMEDY + ", a dimmer with a higher rating, or reduce the load."
+                            if phase_sense.unseen(circuit, runs) is not None else
+                            "Use a dimmer with a higher rating or reduce the load."),
                     sources=("TRADE",), safety=True, details=details)
     return _res("dissipation", Status.PASS, p, allowance, "W", m,
                 f"The switch dissipates at most {check_figure('dissipation', p, 'W')} ({_fmt_setting(worst)}) against "

@@ -76,10 +76,25 @@ def test_the_same_drivers_with_a_constant_current_bleeder_see_the_phase():
 
 
 @pytest.mark.slow
-@pytest.mark.parametrize("name", ["fil-le-neutral-100w", "led-te-6x6w-bleeder", "led-te-4x9w-nobleeder"])
+@pytest.mark.parametrize("name", ["fil-le-neutral-100w", "led-te-6x6w-bleeder"])
 def test_lamps_that_dim_are_not_named(name):
     # common practice, no source: a filament lamp has no phase detector; retrofits with a
-    # bleeder on trailing edge dim; the two-wire trailing-edge dimmer's own supply current
-    # flows through bleederless lamps while it is off and pulls their terminals down.
+    # bleeder on trailing edge dim.
     rng = _checks(_corpus(name))["dimming-range"]
     assert rng.details.get("phase_unseen") is None, rng.message
+
+
+@pytest.mark.slow
+def test_a_two_wire_dimmers_self_supply_is_too_small_to_pull_the_terminals_down():
+    # Revised after the first run.  Written first among the lamps that dim, on the
+    # reasoning that a two-wire dimmer's own supply current flows through bleederless
+    # lamps while it is off and discharges them.  The run named them (held at about
+    # 144 V, lowest light 35 %), and the closed form agrees with the run, not with that
+    # reasoning: the file's 3 mA self-supply discharges the four lamps' 4 × 68 nF at
+    # 3 mA / 272 nF ≈ 11 V/ms, about 90 V over an 8 ms off-interval, so from near the
+    # crest the terminals cannot reach the 65 V detector level.  The case's verdict
+    # (a caution: these lamps dim only to about a third) is unchanged and agrees with
+    # the corpus.
+    rng = _checks(_corpus("led-te-4x9w-nobleeder"))["dimming-range"]
+    assert rng.details["phase_unseen"] is not None, rng.message
+    assert rng.details["lowest_stable_light"] > 0.2
