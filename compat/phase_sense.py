@@ -13,7 +13,13 @@ interface that discharges them (common practice, from memory).
 
 The finding, per setting of the sweep, averaged over the analysed half-cycles:
 
-    switch share   s = (extinction − firing) / 180°, clipped to [0, 1] (0 when not fired)
+    switch share   s = the share of the half-cycle the dimmer passes: trailing edge from
+                       its start to the turn-off, (extinction − firing) / 180°; leading
+                       edge from the firing to the zero, (180° − firing) / 180° (a triac
+                       dropping out earlier is the holding check's matter, and with
+                       capacitor-input lamps it stops after each charging pulse, while
+                       the lamps rightly read the phase from the firing on); 0 when
+                       not fired
     seen share     c = the decode's measure: from the first rise of |v| above V_sense
                        to its last fall below it, or to the half-cycle's end
     held           |v| above V_sense for at least ``HELD_SHARE`` of the switch's
@@ -31,6 +37,7 @@ import numpy as np
 from compat.notation import setting_text
 from compat.runs import SettingRun
 from loads.circuit import Circuit
+from loads.dimmer import Edge
 from loads.driver import SENSE_FRACTION, ElectronicDriver
 
 # Engineering choice: lamps reading 0.15 of a half-cycle more than the switch passes sit
@@ -48,7 +55,7 @@ MIN_OFF_SHARE = 0.25
 HELD_SHARE = 0.9
 
 
-def _shares(run: SettingRun, v_sense: float) -> tuple[float, float, float, float]:
+def _shares(run: SettingRun, v_sense: float, leading: bool) -> tuple[float, float, float, float]:
     """(switch share, seen share, held share of the off-interval, median |v| off [V])."""
     res, hc = run.result, run.half_cycles
     if len(hc) == 0:
@@ -64,8 +71,10 @@ def _shares(run: SettingRun, v_sense: float) -> tuple[float, float, float, float
         if i0 < 0 or i0 + n_half > v.size:
             continue
         seg = v[i0:i0 + n_half]
-        on_from, on_to = ((float(fire), min(float(ext), 180.0)) if math.isfinite(fire) and math.isfinite(ext)
-                          else (0.0, 0.0))
+        if not (math.isfinite(fire) and math.isfinite(ext)):
+            on_from, on_to = 0.0, 0.0
+        else:
+            on_from, on_to = float(fire), (180.0 if leading else min(float(ext), 180.0))
         switch.append(max(0.0, on_to - on_from) / 180.0)
         above = np.flatnonzero(seg > v_sense)
         if above.size == 0:
@@ -90,12 +99,13 @@ def unseen(circuit: Circuit, runs: Sequence[SettingRun]) -> dict | None:
     {group, setting, direction, switch_share, seen_share, held_v, sense_v}; None if no
     group does."""
     worst = None
+    leading = circuit.dimmer.edge is Edge.LEADING
     for g in circuit.loads:
         if not isinstance(g, ElectronicDriver) or not g.dimmable:
             continue
         v_sense = SENSE_FRACTION * math.sqrt(2.0) * g.rated_voltage_v
         for r in runs:
-            s, c, held, v_off = r.memo(("phase_sense", v_sense), lambda r=r: _shares(r, v_sense))
+            s, c, held, v_off = r.memo(("phase_sense", v_sense, leading), lambda r=r: _shares(r, v_sense, leading))
             if 1.0 - s < MIN_OFF_SHARE or held < HELD_SHARE or c - s < MISREAD_SHARE:
                 continue
             if worst is None or c - s > worst["seen_share"] - worst["switch_share"]:
