@@ -77,6 +77,21 @@ SCENARIOS = [
     (Symptom.DEAD_TRAVEL, "dead-rcdiac-500k-2x60w.toml", Mechanism.END_STOP, "ok-rcdiac-2x60w-filament.toml",
      "common practice, no source: a rotary dimmer whose timing network cannot reach the trigger diode's breakover "
      "at the bottom of the pot gives no light over that part of the knob, even to filament lamps"),
+    # Written before diagnose had this symptom.  Expected: the lamps cannot see the
+    # dimmer's phase (compat.phase_sense) in every case of the widened input capacitance
+    # (22–220 nF); a 60 W filament lamp put beside them pulls their terminals down (its
+    # ~900 Ω hot discharges 660 nF in well under a millisecond, closed form R·C), so with
+    # it they dim, where lamps not made for dimming would stay at full light.  Healthy
+    # twin: 5 mA constant-current bleeders discharge even 220 nF at 23 V/ms, from ~190 V
+    # to 65 V in under 6 ms of the 8 ms off-interval at the bottom (closed form).
+    (Symptom.STAYS_BRIGHT, "bright-te-neutral-3x7w.toml", Mechanism.PHASE_UNSEEN, "ok-te-2x9w-bleeder.toml",
+     "common practice, from memory: LED retrofits without a bleeder on a trailing-edge dimmer hardly dim; lamps "
+     "made for phase dimmers (with a bleeder) do"),
+    # Expected: lamps not made for dimming draw their power whatever the phase; with a
+    # trial filament lamp beside them they still stay bright, which tells them from
+    # dimmable lamps that cannot see the phase.
+    (Symptom.STAYS_BRIGHT, "nondim-te-4x9w.toml", Mechanism.NOT_DIMMABLE, "ok-te-2x9w-bleeder.toml",
+     "lamp makers' instructions, common practice: lamps not marked dimmable do not dim"),
 ]
 
 # The reading expected to tell the dimmer's own trouble from the lamps' (engineering
@@ -90,6 +105,7 @@ SCENARIOS = [
 # down (common practice, no source: how the snap-on is described on site).
 TRIAL_READING = {Mechanism.TIMING_HYSTERESIS: "on-off-gap", Mechanism.END_STOP: "trial-lamp-dark-travel"}
 TRIAL_SCENARIOS = [s for s in SCENARIOS if s[2] in TRIAL_READING]
+
 
 
 def _ids(s):
@@ -232,3 +248,17 @@ def test_the_trial_plan_for_a_late_start_compares_both_ways_and_a_filament_lamp(
     assert "To tell timing-network-hysteresis from dimmer-end-stop" in text
     # a symptom that is not a late start gets neither step
     assert "in place of the lamps" not in "\n".join(_diagnosis("hot-le-5x100w.toml", Symptom.RUNS_HOT).trial_plan)
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("scenario", [s for s in SCENARIOS if s[0] is Symptom.STAYS_BRIGHT], ids=_ids)
+def test_a_filament_lamp_beside_the_lamps_tells_unseen_phase_from_not_dimmable(scenario):
+    # Expected before the run: the trial lamp beside them lets lamps that cannot see the
+    # phase dim (a quarter of full light or less at the bottom) and leaves lamps not made
+    # for dimming at 0.9 of full or more, the same bound as their current (NOT_DIMMING_RATIO).
+    symptom, faulty, mechanism, _, _basis = scenario
+    sep = _diagnosis(faulty, symptom).separations[mechanism]
+    assert sep.reading.id == "trial-lamp-beside", sep
+    unseen, not_dimmable = ((sep.expected_if_top, sep.expected_if_runner_up) if mechanism is Mechanism.PHASE_UNSEEN
+                            else (sep.expected_if_runner_up, sep.expected_if_top))
+    assert unseen <= 0.25 and not_dimmable >= 0.9, sep
