@@ -603,7 +603,7 @@ def build_parser(open_app: Callable[[str | None], int | None] | None = None) -> 
     p.add_argument("file")
     p.add_argument("--symptom", required=True, metavar="NAME",
                    help="flicker-low, flicker-all, glow-when-off, flashes-when-off, drops-out, pops-on, dead-travel, "
-                        "buzzing, trips-at-switch-on, runs-hot, lamps-fail-early")
+                        "buzzing, trips-at-switch-on, runs-hot, lamps-fail-early, stays-bright")
     p.add_argument("--observed", action="append", metavar="KEY=VALUE",
                    help="what was seen or read: steady_down_to, comes_on_at (knob 0-1 or %%), off_voltage_v, "
                         "off_current_a, full_current_a, crest_factor, dc_current_a, light_when_off=yes|no")

@@ -39,7 +39,7 @@ from enum import StrEnum
 
 import numpy as np
 
-from compat import breaker_band, derating, sizing
+from compat import breaker_band, derating, phase_sense, sizing
 from compat import checks as ck
 from compat.evaluate import (OFF_ANALYSED_CYCLES, OFF_CYCLES, OFF_SAMPLES_PER_CYCLE, combine, gather, judge,
                              set_path, settings_grid, turn, walk)
@@ -76,6 +76,7 @@ class Mechanism(StrEnum):
     TIMING_HYSTERESIS = "timing-network-hysteresis"  # a rotary dimmer fires from off only well up the knob
     END_STOP = "dimmer-end-stop"                 # the dimmer does not fire at all over the bottom of its travel
     LAMP_START = "lamp-start"                    # the switch conducts but the lamps need more conduction to start
+    PHASE_UNSEEN = "phase-unseen"                # the lamps' terminals stay charged while the switch is off
 
 
 MECHANISM_TEXT = {
@@ -98,6 +99,9 @@ MECHANISM_TEXT = {
                         "stop), whatever the lamps",
     Mechanism.LAMP_START: "the dimmer's switch conducts, but the lamps need more conduction than it gives there "
                           "to start (their converter's start voltage)",
+    Mechanism.PHASE_UNSEEN: "the lamps cannot see the dimmer's phase: while its switch is off nothing pulls their "
+                            "terminals below their phase detector's level (no bleeder), so they read more of the "
+                            "half-cycle than it passes and stay bright",
 }
 
 # Which mechanisms can produce each symptom (common practice, no source: the causes an
@@ -117,6 +121,7 @@ CANDIDATES: dict[Symptom, tuple[Mechanism, ...]] = {
     Symptom.RUNS_HOT: (Mechanism.OVERLOAD, Mechanism.CURRENT_SPIKES),
     Symptom.LAMPS_FAIL_EARLY: (Mechanism.NOT_DIMMABLE, Mechanism.CURRENT_SPIKES, Mechanism.DC_IN_CORE,
                                Mechanism.TURN_OFF_SPIKE),
+    Symptom.STAYS_BRIGHT: (Mechanism.PHASE_UNSEEN, Mechanism.NOT_DIMMABLE),
 }
 
 # Engineering choice: "low settings" are the bottom half of the knob's travel; flicker
@@ -186,7 +191,13 @@ WIDEN: dict[str, Widen] = {w.path: w for w in (
           applies=_two_wire),
     Widen(path="supply.source_inductance_h", file_key="supply.source_inductance_uh", low=100e-6, high=800e-6,
           origin="final-circuit loop inductance, up to the IEC 60725 reference impedance's 0.8 mH (from memory)"),
+    # one unknown per LED lamp or driver group (``GROUP_PATH``)
+    Widen(path="loads[*].input_capacitance_f", file_key="loads[*].input_capacitance_nf", low=22e-9, high=220e-9,
+          origin="LED lamps' and drivers' input (interference) capacitors, not printed: tens to a couple of hundred "
+                 "nF (common practice, no source)"),
 )}
+# A widened path of every group of a kind: "*" stands for each group's index (from 1).
+GROUP_PATH = "loads[*]"
 
 # The inputs that bear on each symptom's mechanisms (engineering choice: the triac's
 # currents decide latching and holding; the self-supply the off-state; the loop
@@ -203,6 +214,9 @@ WIDENED_FOR: dict[Symptom, tuple[str, ...]] = {
     Symptom.TRIPS_AT_SWITCH_ON: ("supply.source_inductance_h",),
     Symptom.RUNS_HOT: ("supply.source_inductance_h",),
     Symptom.LAMPS_FAIL_EARLY: ("supply.source_inductance_h",),
+    # what holds the terminals up (the lamps' input capacitors) and what pulls them down
+    # while the switch is off (a two-wire dimmer's own supply current)
+    Symptom.STAYS_BRIGHT: ("loads[*].input_capacitance_f", "dimmer.self_supply_a"),
 }
 
 
@@ -247,9 +261,16 @@ def unknowns_for(circuit: Circuit, symptom: Symptom) -> tuple[Unknown, ...]:
     for path in WIDENED_FOR[symptom]:
         w = WIDEN[path]
         only_if = WIDEN_ONLY_IF.get((symptom, path), lambda c: True)
-        if path in have or not w.applies(circuit) or not only_if(circuit):
+        if not w.applies(circuit) or not only_if(circuit):
             continue
-        out.append(Unknown(path=path, file_key=w.file_key, low=w.low, high=w.high, origin="widened", why=w.origin))
+        if path.startswith(GROUP_PATH):
+            concrete = [(path.replace("*", str(i)), w.file_key.replace("*", str(i)))
+                        for i, g in enumerate(circuit.loads, start=1) if isinstance(g, ElectronicDriver)]
+        else:
+            concrete = [(path, w.file_key)]
+        for p, key in concrete:
+            if p not in have:
+                out.append(Unknown(path=p, file_key=key, low=w.low, high=w.high, origin="widened", why=w.origin))
     return tuple(out)
 
 
@@ -272,6 +293,7 @@ class Case:
     trial_down: tuple = ()
     fire_up: float | None = None
     fire_down: float | None = None
+    beside_down: tuple = ()
 
     @property
     def circuit(self) -> Circuit:
@@ -311,6 +333,14 @@ def leakage_paths(circuit: Circuit) -> dict[Mechanism, Circuit]:
     if rc is not None:
         out[Mechanism.TIMING_LEAK] = only(snubber_capacitance_f=0.0, self_supply_a=0.0)
     return out
+
+
+def beside_circuit(circuit: Circuit) -> Circuit:
+    """The circuit with one trial filament lamp (``TRIAL_FILAMENT_W``) added across the
+    lamps: a path that pulls their terminals down while the switch is off."""
+    lamp = Filament(name="trial filament lamp", count=1, rated_power_w=TRIAL_FILAMENT_W,
+                    rated_voltage_v=float(circuit.supply.voltage_v))
+    return dataclasses.replace(circuit, loads=circuit.loads + (lamp,), ranges=())
 
 
 def trial_circuit(circuit: Circuit) -> Circuit:
@@ -519,6 +549,33 @@ def dimmed_current_ratio(case: Case) -> float | None:
     return float(p.load_rms_a / full.load_rms_a)
 
 
+# Engineering choice: lamps whose lowest light turning down is a quarter of full or more
+# "hardly dim" to a customer: a quarter of the light looks like half of it (the square
+# law of compat.perception).
+STAYS_BRIGHT_MIN = 0.25
+
+
+def _lowest_lit(runs, weights) -> float | None:
+    lit = [float(np.mean(r.light(weights))) for r in runs]
+    lit = [x for x in lit if x > ck.LIT_FRACTION]
+    return min(lit) if lit else None
+
+
+def lowest_lit_light(case: Case) -> float | None:
+    """The lamps' lowest light turning down, over the settings at which they are lit [1]."""
+    return _lowest_lit(case.evidence.down, case.evidence.light_weights)
+
+
+def trial_beside_light(case: Case) -> float | None:
+    """The lamps' own lowest light turning down with a trial filament lamp beside them
+    (``beside_circuit``; the filament's own light left out) [1]; 0 if they go dark."""
+    if not case.beside_down:
+        return None
+    weights = np.append(np.asarray(case.evidence.light_weights, dtype=float), 0.0)
+    low = _lowest_lit(case.beside_down, weights)
+    return 0.0 if low is None else low
+
+
 KNOB = "engineering choice: a knob position judged by eye to a twentieth of its travel"
 READINGS: dict[str, Reading] = {r.id: r for r in (
     Reading(id="steady-down-to", tool="your eyes and the knob",
@@ -570,6 +627,16 @@ READINGS: dict[str, Reading] = {r.id: r for r in (
             procedure="Clamp one transformer's primary lead at the setting where it hums most and read the DC current",
             unit="A", resolution=0.01, resolution_origin="from memory: a DC clamp's lowest range shows 0.01 A",
             value=dc_current_a),
+    Reading(id="trial-lamp-beside", tool=f"a {TRIAL_FILAMENT_W:.0f} W filament lamp as a trial load, your eyes and "
+                                        "the knob",
+            procedure=f"With the circuit isolated, connect a {TRIAL_FILAMENT_W:.0f} W filament lamp across the lamps "
+                      "(beside them, the lamps left in); from full, turn the knob slowly to the bottom and judge how "
+                      "bright the lamps themselves are at their dimmest (0 dark, 1 as at full)",
+            unit="of full light", resolution=0.1,
+            resolution_origin="engineering choice: near the bottom a tenth of full light looks like a third of it "
+                              "(the square law of compat.perception), so a lamp's dimmest light is judged by eye, "
+                              "beside the trial lamp, to a tenth of full",
+            value=trial_beside_light),
     Reading(id="dimmed-current-ratio", tool="a true-rms clamp meter",
             procedure=f"Clamp the dimmer's switched live; read the current at about {DIM_RATIO_SETTING:g} of the "
                       "knob's travel and at full, and divide the first by the second",
@@ -587,8 +654,19 @@ TELLTALE: dict[Mechanism, str] = {
     Mechanism.SWITCH_ON_SURGE: "full-current", Mechanism.DC_IN_CORE: "dc-current",
     Mechanism.TURN_OFF_SPIKE: "full-current",
     Mechanism.TIMING_HYSTERESIS: "on-off-gap", Mechanism.END_STOP: "trial-lamp-dark-travel",
-    Mechanism.LAMP_START: "trial-lamp-comes-on-at",
+    Mechanism.LAMP_START: "trial-lamp-comes-on-at", Mechanism.PHASE_UNSEEN: "trial-lamp-beside",
 }
+# Where a symptom has a better telltale for a mechanism than its usual one: lamps not
+# made for dimming and lamps that cannot see the phase both draw full current dimmed;
+# a filament lamp beside them lets only the second kind dim.
+TELLTALE_FOR: dict[tuple[Symptom, Mechanism], str] = {
+    (Symptom.STAYS_BRIGHT, Mechanism.NOT_DIMMABLE): "trial-lamp-beside",
+}
+
+
+def telltale(symptom: Symptom, m: Mechanism) -> str:
+    """The id of the reading that shows mechanism ``m`` best for ``symptom``."""
+    return TELLTALE_FOR.get((symptom, m), TELLTALE[m])
 
 
 # ---------------------------------------------------------------- findings
@@ -814,6 +892,23 @@ def _late_start_finding(m: Mechanism, symptom: Symptom, case: Case) -> Finding:
     return Finding(reproduces=False, excess=0.0, text=f"{m} does not produce this symptom")
 
 
+def _unseen_finding(case: Case) -> Finding:
+    """Lamps that cannot see the phase (``compat.phase_sense``, read from dimming-range)
+    and stay bright: their lowest lit light at least ``STAYS_BRIGHT_MIN``."""
+    found = case.checks["dimming-range"].details.get("phase_unseen")
+    low = lowest_lit_light(case)
+    low_text = "the lamps are never lit" if low is None else f"their lowest light turning down is {100 * low:.0f} %"
+    if found is None:
+        reads = any(isinstance(g, ElectronicDriver) and g.dimmable for g in case.circuit.loads)
+        return Finding(reproduces=False, excess=-1.0,
+                       text=("the lamps see the dimmer's phase" if reads else
+                             "no lamp on the circuit is made for dimming, so none reads the phase") + f"; {low_text}")
+    misread = found["seen_share"] - found["switch_share"]
+    ok = low is not None and low >= STAYS_BRIGHT_MIN
+    return Finding(reproduces=ok, excess=misread / phase_sense.MISREAD_SHARE - 1.0,
+                   text=phase_sense.sentence(found) + f"; {low_text}")
+
+
 def finding(m: Mechanism, symptom: Symptom, case: Case) -> Finding:
     """Whether mechanism ``m`` reproduces ``symptom`` in ``case``."""
     if m in (Mechanism.LATCHING, Mechanism.HOLDING):
@@ -838,6 +933,8 @@ def finding(m: Mechanism, symptom: Symptom, case: Case) -> Finding:
         return _check_finding("turn-off-surge", case)
     if m in (Mechanism.TIMING_HYSTERESIS, Mechanism.END_STOP, Mechanism.LAMP_START):
         return _late_start_finding(m, symptom, case)
+    if m is Mechanism.PHASE_UNSEEN:
+        return _unseen_finding(case)
     raise ValueError(m)
 
 
@@ -1029,6 +1126,8 @@ def applies(m: Mechanism, circuit: Circuit) -> str | None:
         return "a leading-edge dimmer turns off at current zero and has no over-current protection modelled"
     if m is Mechanism.NOT_DIMMABLE and not any(isinstance(g, ElectronicDriver) for g in circuit.loads):
         return "no LED lamp or driver on the circuit"
+    if m is Mechanism.PHASE_UNSEEN and not any(isinstance(g, ElectronicDriver) for g in circuit.loads):
+        return "no LED lamp or driver on the circuit: nothing reads the dimmer's phase"
     if m is Mechanism.DC_IN_CORE and not any(isinstance(g, MagneticTransformer) for g in circuit.loads):
         return "no iron-core transformer on the circuit"
     if m is Mechanism.SNUBBER_LEAK and d.snubber_capacitance_f <= 0:
@@ -1046,6 +1145,19 @@ def applies(m: Mechanism, circuit: Circuit) -> str | None:
     if m in (Mechanism.SWITCH_ON_SURGE,) and circuit.breaker is None:
         return "no breaker is given for this circuit"
     return None
+
+
+# Engineering choice: a bleeder is sized to pull a lamp's input capacitor from the crest
+# of its rated voltage down to its phase detector's level within a quarter of a
+# half-cycle, I = C·ΔV/Δt (closed form for a constant current).
+BLEEDER_FALL_SHARE = 0.25
+
+
+def bleeder_needed_a(g: ElectronicDriver, frequency_hz: float) -> float:
+    """Constant bleeder current per lamp that lets it see the phase [A] (``BLEEDER_FALL_SHARE``)."""
+    v_pk = math.sqrt(2.0) * g.rated_voltage_v
+    dv = v_pk * (1.0 - phase_sense.SENSE_FRACTION)
+    return g.input_capacitance_f * dv / (BLEEDER_FALL_SHARE * 0.5 / frequency_hz)
 
 
 # Engineering choice: the holding and latching currents of a sensitive triac, used to
@@ -1086,6 +1198,12 @@ def cured(m: Mechanism, circuit: Circuit) -> Circuit | None:
         if d.control is not Control.RC_DIAC:
             return None
         new = dataclasses.replace(d, control=Control.PHASE)       # the cure offered: an electronic phase dimmer
+    elif m is Mechanism.PHASE_UNSEEN:
+        loads = tuple(dataclasses.replace(g, bleeder_a=bleeder_needed_a(g, circuit.supply.frequency_hz),
+                                          bleeder_kind="constant-current")
+                      if isinstance(g, ElectronicDriver) and g.dimmable and g.bleeder_a <= 0 else g
+                      for g in circuit.loads)
+        return dataclasses.replace(circuit, loads=loads, ranges=())
     elif m is Mechanism.LAMP_START:
         starts = [g for g in circuit.loads if isinstance(g, ElectronicDriver) and g.start_voltage_v > CURED_START_V]
         if not starts:
@@ -1110,8 +1228,12 @@ def _run_case(label: str, key: str, circuit: Circuit, values: dict, symptom: Sym
         trial_up = walk(trial, grid, "up", sim, cancel=cancel)
         trial_down = walk(trial, grid, "down", sim, cancel=cancel)
         fire_up, fire_down = firing_thresholds(circuit, ev, sim, cancel)
+    beside_down = ()
+    if symptom is Symptom.STAYS_BRIGHT:
+        beside_down = tuple(walk(beside_circuit(circuit), settings_grid(DIAGNOSE_SETTINGS), "down", sim, cancel=cancel))
     return Case(label=label, key=key, values=values, evidence=ev, checks={r.id: r for r in judge(ev)},
-                off_paths=off_paths, trial_up=trial_up, trial_down=trial_down, fire_up=fire_up, fire_down=fire_down)
+                off_paths=off_paths, trial_up=trial_up, trial_down=trial_down, fire_up=fire_up, fire_down=fire_down,
+                beside_down=beside_down)
 
 
 def separation(symptom: Symptom, cases: Sequence[Case], a: Ranked, b: Ranked, *, simulator=None,
@@ -1141,7 +1263,8 @@ def separation(symptom: Symptom, cases: Sequence[Case], a: Ranked, b: Ranked, *,
             cb = _run_case(f"{base.label}, without {a.mechanism}", base.key, fixed, base.values, symptom,
                            simulator or default_simulator(), cancel)
     acts = finding(b.mechanism, symptom, cb).reproduces
-    ids = [TELLTALE[a.mechanism], TELLTALE[b.mechanism]] + [TELLTALE[m] for m in CANDIDATES[symptom]]
+    ids = [telltale(symptom, a.mechanism), telltale(symptom, b.mechanism)] + [telltale(symptom, m)
+                                                                               for m in CANDIDATES[symptom]]
     found = []          # (gap in resolutions, reading, expected if a, if b, where b's figure is from, at least, b acts)
     for rid in dict.fromkeys(ids):
         rd = READINGS[rid]
@@ -1149,7 +1272,7 @@ def separation(symptom: Symptom, cases: Sequence[Case], a: Ranked, b: Ranked, *,
         gap = abs(va - vb) / rd.resolution if va is not None and vb is not None else -1.0
         found.append((gap, rd, va, vb, cb.label, False, acts))
     # the runner-up's own telltale against the least it reads where it acts
-    rd = READINGS[TELLTALE[b.mechanism]]
+    rd = READINGS[telltale(symptom, b.mechanism)]
     bound, va = presence_bound(b.mechanism, symptom, ca), rd.value(ca)
     if bound is not None and va is not None:
         found.insert(2, ((bound - va) / rd.resolution, rd, va, bound, f"where {b.mechanism} would act", True, True))
@@ -1187,7 +1310,10 @@ def presence_bound(m: Mechanism, symptom: Symptom, case: Case) -> float | None:
         r = case.checks["dc-offset"]
         return None if r.limit is None else (0.5 if symptom is Symptom.BUZZING else 1.0) * r.limit
     if m is Mechanism.NOT_DIMMABLE:
-        return NOT_DIMMING_RATIO
+        # lamps that ignore the phase draw as they did with a trial lamp beside them, so
+        # where they are the cause of lamps staying bright they read at least the
+        # symptom's own threshold on the trial (engineering approximation)
+        return STAYS_BRIGHT_MIN if symptom is Symptom.STAYS_BRIGHT else NOT_DIMMING_RATIO
     return None
 
 
@@ -1250,6 +1376,17 @@ def remedy(m: Mechanism, case: Case) -> str:
                else "fires at every position of the knob")
         return (f"A dimmer with a low-end trim (preset), set so that {what}, or an electronic phase dimmer, whose "
                 f"controller {why}; otherwise tell the user where on the knob the light begins.")
+    if m is Mechanism.PHASE_UNSEEN:
+        groups = [g for g in c.loads if isinstance(g, ElectronicDriver) and g.dimmable]
+        need = "; ".join(f"{g.name}: about {1000 * bleeder_needed_a(g, c.supply.frequency_hz):.0f} mA per lamp with "
+                         f"{1e9 * g.input_capacitance_f:.0f} nF across its input"
+                         + (f", where its own bleeder gives {1000 * g.bleeder_a:g} mA" if g.bleeder_a > 0 else "")
+                         for g in groups)
+        what = "a stronger bleeder" if any(g.bleeder_a > 0 for g in groups) else "a bleeder"
+        return (f"Lamps or drivers with {what}, made for this dimmer's edge: while the switch is off the bleeder must "
+                "pull each lamp's terminals from the crest to its phase detector's level within a quarter of a "
+                f"half-cycle ({need}; closed form C·ΔV/Δt). A filament lamp left on the circuit does the same, as the "
+                "trial shows.")
     if m is Mechanism.LAMP_START:
         if c.dimmer.low_end_trim:
             return ("Set the dimmer's low-end trim (its preset) up to the position at which the lamps come on from "
@@ -1257,6 +1394,17 @@ def remedy(m: Mechanism, case: Case) -> str:
         return ("Lamps with a lower start (made for phase dimmers: they start at the conduction the bottom of the knob "
                 "gives), or a dimmer with a low-end trim set to the position at which these lamps come on.")
     return ""
+
+
+def _sizing_case(r: Ranked, kept: Sequence[Case], by_label: dict) -> Case:
+    """The case a remedy is sized on: the mechanism's strongest case, except that a
+    bleeder is sized on the reproducing case with the most input capacitance (a bleeder
+    big enough there is big enough for every lamp the unknowns allow)."""
+    if r.mechanism is Mechanism.PHASE_UNSEEN:
+        pool = [c for c in kept if c.label in r.cases_reproducing] or list(kept)
+        return max(pool, key=lambda c: sum(g.count * g.input_capacitance_f for g in c.circuit.loads
+                                            if isinstance(g, ElectronicDriver)))
+    return by_label[r.best_case]
 
 
 def _narrow(unknowns: Sequence[Unknown], kept: Sequence[Case], all_cases: Sequence[Case]) -> dict:
@@ -1296,7 +1444,7 @@ def diagnose(circuit: Circuit, symptom: Symptom | str, *, observations: Sequence
         other = next((x for x in ranked if x is not r and x.applies), None)
         if other is not None:
             seps[r.mechanism] = separation(symptom, kept, r, other, simulator=simulator, cancel=cancel)
-        rems[r.mechanism] = remedy(r.mechanism, by_label[r.best_case])
+        rems[r.mechanism] = remedy(r.mechanism, _sizing_case(r, kept, by_label))
     if not possible:
         notes.append("No modelled mechanism reproduces this symptom on this circuit over its unknowns: look for a "
                      "fault outside the model (a loose or overheated connection, a failing lamp or dimmer).")

@@ -22,6 +22,7 @@ class Symptom(StrEnum):
     TRIPS_AT_SWITCH_ON = "trips-at-switch-on"    # the breaker trips when the lights are switched on
     RUNS_HOT = "runs-hot"                        # the dimmer plate runs hot
     LAMPS_FAIL_EARLY = "lamps-fail-early"        # lamps or transformers fail well before their life
+    STAYS_BRIGHT = "stays-bright"                # turned to the bottom, the lamps hardly dim
 
 
 SYMPTOM_TEXT = {
@@ -36,4 +37,5 @@ SYMPTOM_TEXT = {
     Symptom.TRIPS_AT_SWITCH_ON: "the breaker trips when the lights are switched on",
     Symptom.RUNS_HOT: "the dimmer runs hot",
     Symptom.LAMPS_FAIL_EARLY: "lamps or transformers fail early",
+    Symptom.STAYS_BRIGHT: "the lamps hardly dim: turned to the bottom they stay bright",
 }

@@ -256,9 +256,16 @@ def test_a_filament_lamp_beside_the_lamps_tells_unseen_phase_from_not_dimmable(s
     # Expected before the run: the trial lamp beside them lets lamps that cannot see the
     # phase dim (a quarter of full light or less at the bottom) and leaves lamps not made
     # for dimming at 0.9 of full or more, the same bound as their current (NOT_DIMMING_RATIO).
+    # Revised after the first run: the lamps not made for dimming read 0.35, not 0.9 —
+    # at the bottom of a trailing-edge dimmer (about 20° of conduction) their converters
+    # draw full power from a bus the short conduction cannot keep up, stop and start
+    # again, so their mean light falls to about a third (the same 0.36 as without the
+    # trial lamp in the corpus's led-nondimmable-te).  What tells the two apart is that
+    # they stay lit (a quarter of full or more, the symptom's threshold) while the lamps
+    # that cannot see the phase go nearly dark (0.05).
     symptom, faulty, mechanism, _, _basis = scenario
     sep = _diagnosis(faulty, symptom).separations[mechanism]
     assert sep.reading.id == "trial-lamp-beside", sep
     unseen, not_dimmable = ((sep.expected_if_top, sep.expected_if_runner_up) if mechanism is Mechanism.PHASE_UNSEEN
                             else (sep.expected_if_runner_up, sep.expected_if_top))
-    assert unseen <= 0.25 and not_dimmable >= 0.9, sep
+    assert unseen <= 0.1 and not_dimmable >= 0.25, sep
