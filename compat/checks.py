@@ -373,7 +373,8 @@ def tripped_half_cycles(circuit: Circuit, run: SettingRun) -> int:
 def _unseen_first(circuit: Circuit, runs: Sequence[SettingRun]) -> tuple[tuple[str | None, str], ...]:
     """The remedy option for lamps that cannot see the phase (``compat.phase_sense``),
     to lead a remedy's options where they apply; none otherwise."""
-    return ((None, phase_sense.REMEDY),) if phase_sense.unseen(circuit, runs) is not None else ()
+    found = phase_sense.unseen(circuit, runs)
+    return ((None, phase_sense.remedy(circuit, found)),) if found is not None else ()
 
 
 def _trip_remedy(circuit: Circuit, runs: Sequence[SettingRun]) -> str:
@@ -1081,8 +1082,8 @@ def check_dimming_range(circuit: Circuit, down: Sequence[SettingRun], up: Sequen
     if problems:
         return _res("dimming-range", Status.CAUTION, 100 * lowv, 100 * target, "%", m,
                     msg[:-1] + "; " + " and ".join(problems) + "." + why,
-                    remedy=("Lamps or drivers with a bleeder (made for this dimmer's edge), or a dimmer matched to "
-                            "these lamps (edge, minimum load), usually widen the range." if unseen is not None else
+                    remedy=(phase_sense.remedy(circuit, unseen).capitalize() + ", or a dimmer matched to these lamps "
+                            "(edge, minimum load), usually widen the range." if unseen is not None else
                             "A dimmer matched to these lamps (edge, minimum load) usually widens the range."),
                     sources=("LRC_ASSIST_DIMMING", "IES_HANDBOOK"), details=details)
     return _res("dimming-range", Status.PASS, 100 * lowv, 100 * target, "%", m, msg + why,
@@ -1239,9 +1240,8 @@ def check_dissipation(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResu
                     + (f" ({details['turn_off_w'] + details['clamp_w']:.1f} W of it from cutting the current at each "
                        "turn-off)" if details["turn_off_w"] + details["clamp_w"] > 0.05 * p else "")
                     + f", more than the {allowance:.1f} W the dimmer box is built to shed.",
-                    remedy=("Use " + phase_sense.REMEDY + ", a dimmer with a higher rating, or reduce the load."
-                            if phase_sense.unseen(circuit, runs) is not None else
-                            "Use a dimmer with a higher rating or reduce the load."),
+                    remedy=_offer(circuit, *_unseen_first(circuit, runs), (None, "a dimmer with a higher rating"),
+                                  (None, "less load"), lead="Use "),
                     sources=("TRADE",), safety=True, details=details)
     return _res("dissipation", Status.PASS, p, allowance, "W", m,
                 f"The switch dissipates at most {check_figure('dissipation', p, 'W')} ({_fmt_setting(worst)}) against "

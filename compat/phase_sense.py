@@ -123,4 +123,8 @@ def sentence(found: dict) -> str:
             "drivers made for phase dimmers carry a bleeder that pulls their terminals down")
 
 
-REMEDY = "lamps or drivers with a bleeder (made for this dimmer's edge)"
+def remedy(circuit: Circuit, found: dict) -> str:
+    """The cure in a few words, never proposing what the lamps already have: a bleeder,
+    or a stronger one where the group that cannot see the phase has a bleeder."""
+    has = any(g.name == found["group"] and isinstance(g, ElectronicDriver) and g.bleeder_a > 0 for g in circuit.loads)
+    return f"lamps or drivers with {'a stronger bleeder' if has else 'a bleeder'} (made for this dimmer's edge)"

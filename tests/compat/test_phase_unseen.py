@@ -101,3 +101,17 @@ def test_a_two_wire_dimmers_self_supply_is_too_small_to_pull_the_terminals_down(
     rng = _checks(_corpus("led-te-4x9w-nobleeder"))["dimming-range"]
     assert rng.details["phase_unseen"] is not None, rng.message
     assert rng.details["lowest_stable_light"] > 0.2
+
+
+@pytest.mark.slow
+def test_lamps_with_too_weak_a_bleeder_are_told_a_stronger_one():
+    # closed form: a 0.1 mA resistive bleeder is 325 V / 0.1 mA = 3.25 MΩ; with the
+    # driver's 100 nF that is a 0.33 s time constant, far longer than the 8 ms
+    # off-interval, so the terminals stay held.  The remedy must not propose "a bleeder"
+    # to drivers that have one (a remedy never proposes what the circuit already has).
+    c = _corpus("drv-te-neutral-8x12w")
+    weak = dataclasses.replace(c, loads=(dataclasses.replace(c.loads[0], bleeder_a=0.0001),))
+    checks = _checks(weak)
+    assert checks["dimming-range"].details["phase_unseen"] is not None
+    for cid in ("dimming-range", "repetitive-peak", "dissipation"):
+        assert "a stronger bleeder" in checks[cid].remedy, (cid, checks[cid].remedy)
