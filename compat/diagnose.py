@@ -1147,19 +1147,6 @@ def applies(m: Mechanism, circuit: Circuit) -> str | None:
     return None
 
 
-# Engineering choice: a bleeder is sized to pull a lamp's input capacitor from the crest
-# of its rated voltage down to its phase detector's level within a quarter of a
-# half-cycle, I = C·ΔV/Δt (closed form for a constant current).
-BLEEDER_FALL_SHARE = 0.25
-
-
-def bleeder_needed_a(g: ElectronicDriver, frequency_hz: float) -> float:
-    """Constant bleeder current per lamp that lets it see the phase [A] (``BLEEDER_FALL_SHARE``)."""
-    v_pk = math.sqrt(2.0) * g.rated_voltage_v
-    dv = v_pk * (1.0 - phase_sense.SENSE_FRACTION)
-    return g.input_capacitance_f * dv / (BLEEDER_FALL_SHARE * 0.5 / frequency_hz)
-
-
 # Engineering choice: the holding and latching currents of a sensitive triac, used to
 # show the circuit without a holding or latching failure (the low end of WIDEN's spans).
 CURED_HOLDING_A = 0.005
@@ -1199,7 +1186,7 @@ def cured(m: Mechanism, circuit: Circuit) -> Circuit | None:
             return None
         new = dataclasses.replace(d, control=Control.PHASE)       # the cure offered: an electronic phase dimmer
     elif m is Mechanism.PHASE_UNSEEN:
-        loads = tuple(dataclasses.replace(g, bleeder_a=bleeder_needed_a(g, circuit.supply.frequency_hz),
+        loads = tuple(dataclasses.replace(g, bleeder_a=phase_sense.bleeder_needed_a(g, circuit.supply.frequency_hz),
                                           bleeder_kind="constant-current")
                       if isinstance(g, ElectronicDriver) and g.dimmable and g.bleeder_a <= 0 else g
                       for g in circuit.loads)
@@ -1378,7 +1365,7 @@ def remedy(m: Mechanism, case: Case) -> str:
                 f"controller {why}; otherwise tell the user where on the knob the light begins.")
     if m is Mechanism.PHASE_UNSEEN:
         groups = [g for g in c.loads if isinstance(g, ElectronicDriver) and g.dimmable]
-        need = "; ".join(f"{g.name}: about {1000 * bleeder_needed_a(g, c.supply.frequency_hz):.0f} mA per lamp with "
+        need = "; ".join(f"{g.name}: about {1000 * phase_sense.bleeder_needed_a(g, c.supply.frequency_hz):.0f} mA per lamp with "
                          f"{1e9 * g.input_capacitance_f:.0f} nF across its input"
                          + (f", where its own bleeder gives {1000 * g.bleeder_a:g} mA" if g.bleeder_a > 0 else "")
                          for g in groups)

@@ -123,6 +123,19 @@ def sentence(found: dict) -> str:
             "drivers made for phase dimmers carry a bleeder that pulls their terminals down")
 
 
+# Engineering choice: a bleeder is sized to pull a lamp's input capacitor from the crest
+# of its rated voltage down to its phase detector's level within a quarter of a
+# half-cycle, I = C·ΔV/Δt (closed form for a constant current).
+BLEEDER_FALL_SHARE = 0.25
+
+
+def bleeder_needed_a(g: ElectronicDriver, frequency_hz: float) -> float:
+    """Constant bleeder current per lamp that lets it see the phase [A] (``BLEEDER_FALL_SHARE``)."""
+    v_pk = math.sqrt(2.0) * g.rated_voltage_v
+    dv = v_pk * (1.0 - SENSE_FRACTION)
+    return g.input_capacitance_f * dv / (BLEEDER_FALL_SHARE * 0.5 / frequency_hz)
+
+
 def remedy(circuit: Circuit, found: dict) -> str:
     """The cure in a few words, never proposing what the lamps already have: a bleeder,
     or a stronger one where the group that cannot see the phase has a bleeder."""

@@ -115,3 +115,14 @@ def test_lamps_with_too_weak_a_bleeder_are_told_a_stronger_one():
     assert checks["dimming-range"].details["phase_unseen"] is not None
     for cid in ("dimming-range", "repetitive-peak", "dissipation"):
         assert "a stronger bleeder" in checks[cid].remedy, (cid, checks[cid].remedy)
+
+
+def test_the_bleeder_size_is_the_closed_form():
+    # closed form, constant current: I = C·ΔV/Δt with C = 100 nF, ΔV = 0.8 × √2 × 230 V
+    # = 260.2 V (crest to the detector's level at a fifth of it), Δt = a quarter of a
+    # 50 Hz half-cycle = 2.5 ms: 10.41 mA.
+    from compat.phase_sense import bleeder_needed_a
+    from loads.driver import ElectronicDriver
+    g = ElectronicDriver(name="lamp", count=1, rated_power_w=9.0, rated_voltage_v=230.0, input_capacitance_f=100e-9)
+    assert bleeder_needed_a(g, 50.0) == pytest.approx(100e-9 * 0.8 * 2 ** 0.5 * 230.0 / 2.5e-3, rel=1e-12)
+    assert bleeder_needed_a(g, 50.0) == pytest.approx(0.01041, rel=1e-3)
