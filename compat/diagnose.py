@@ -1186,11 +1186,7 @@ def cured(m: Mechanism, circuit: Circuit) -> Circuit | None:
             return None
         new = dataclasses.replace(d, control=Control.PHASE)       # the cure offered: an electronic phase dimmer
     elif m is Mechanism.PHASE_UNSEEN:
-        loads = tuple(dataclasses.replace(g, bleeder_a=phase_sense.bleeder_needed_a(g, circuit.supply.frequency_hz),
-                                          bleeder_kind="constant-current")
-                      if isinstance(g, ElectronicDriver) and g.dimmable and g.bleeder_a <= 0 else g
-                      for g in circuit.loads)
-        return dataclasses.replace(circuit, loads=loads, ranges=())
+        return phase_sense.with_bleeders(circuit)[0]
     elif m is Mechanism.LAMP_START:
         starts = [g for g in circuit.loads if isinstance(g, ElectronicDriver) and g.start_voltage_v > CURED_START_V]
         if not starts:

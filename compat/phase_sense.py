@@ -29,6 +29,7 @@ A group cannot see the phase where its terminals are held and c − s ≥ ``MISR
 """
 from __future__ import annotations
 
+import dataclasses
 import math
 from collections.abc import Sequence
 
@@ -134,6 +135,20 @@ def bleeder_needed_a(g: ElectronicDriver, frequency_hz: float) -> float:
     v_pk = math.sqrt(2.0) * g.rated_voltage_v
     dv = v_pk * (1.0 - SENSE_FRACTION)
     return g.input_capacitance_f * dv / (BLEEDER_FALL_SHARE * 0.5 / frequency_hz)
+
+
+def with_bleeders(circuit: Circuit) -> tuple[Circuit, dict[str, float]]:
+    """The circuit with every dimmable lamp or driver group whose bleeder is below
+    ``bleeder_needed_a`` given a constant-current bleeder of that size, and the sizes
+    given, by group name [A]."""
+    f = circuit.supply.frequency_hz
+    given, loads = {}, []
+    for g in circuit.loads:
+        if isinstance(g, ElectronicDriver) and g.dimmable and g.bleeder_a < bleeder_needed_a(g, f):
+            given[g.name] = bleeder_needed_a(g, f)
+            g = dataclasses.replace(g, bleeder_a=given[g.name], bleeder_kind="constant-current")
+        loads.append(g)
+    return dataclasses.replace(circuit, loads=tuple(loads), ranges=()), given
 
 
 def remedy(circuit: Circuit, found: dict) -> str:
