@@ -12,9 +12,10 @@
   units of each group a given breaker holds.
 
 The searches run a coarser sweep than ``evaluate`` (``SEARCH_SETTINGS`` points); the
-correction device is then confirmed by a full ``evaluate``.  The rating check bounds
-the lamp counts before any simulation, and the circuit as it is is judged by its own
-full evaluation.
+correction device is then confirmed by a full ``evaluate``.  A probe of the correction
+search, asked only pass or fail, stops at its first failure that the full judging
+cannot excuse (``_FailureWatch``).  The rating check bounds the lamp counts before any
+simulation, and the circuit as it is is judged by its own full evaluation.
 """
 from __future__ import annotations
 
