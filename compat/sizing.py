@@ -118,6 +118,9 @@ class _FailureWatch:
         self.stop = Event()
         self.failed: str | None = None
         self.up_lit_seen = False            # the up walk runs in one thread, in order of setting
+        # the two walks' threads judge one at a time (a first judging of flicker may
+        # build the reference lamp's curve, which is written to a cache file)
+        self.lock = Lock()
 
     def __call__(self, run: SettingRun) -> None:
         lit = run.light_fraction(self.weights) > ck.LIT_FRACTION
@@ -126,6 +129,10 @@ class _FailureWatch:
             self.up_lit_seen, pop_on = True, True
         if self.stop.is_set() or not lit or run.setting <= self.above + 1e-9:
             return
+        with self.lock:
+            self._judge(run, pop_on)
+
+    def _judge(self, run: SettingRun, pop_on: bool) -> None:
         for cid in self.ids:
             if cid == "flicker" and not pop_on:
                 res = ck.check_flicker(self.circuit, (run,), self.weights)
