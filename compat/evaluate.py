@@ -61,17 +61,20 @@ def settings_grid(n: int) -> list[float]:
     return [float(x) for x in np.linspace(0.0, 1.0, max(int(n), 2))]
 
 
-def walk(circuit: Circuit, settings: list[float], direction: str, sim, *, tick=None, cancel=None) -> tuple[SettingRun, ...]:
+def walk(circuit: Circuit, settings: list[float], direction: str, sim, *, tick=None, cancel=None,
+         watch=None) -> tuple[SettingRun, ...]:
     """The sweep in one direction, keeping every setting's result: down from the steady
     state at full, up from the lamp-out state."""
     order = sorted(settings, reverse=(direction == "down"))
     state: object = "steady" if direction == "down" else "off"
-    return tuple(turn(circuit, state, direction, order, sim, tick=tick, cancel=cancel))
+    return tuple(turn(circuit, state, direction, order, sim, tick=tick, cancel=cancel, watch=watch))
 
 
-def turn(circuit: Circuit, state, direction: str, settings, sim, *, tick=None, cancel=None) -> list[SettingRun]:
+def turn(circuit: Circuit, state, direction: str, settings, sim, *, tick=None, cancel=None,
+         watch=None) -> list[SettingRun]:
     """The knob turned through ``settings`` in the order given, from ``state`` (a start
-    or a run's final state), the circuit's state carried from one setting to the next."""
+    or a run's final state), the circuit's state carried from one setting to the next.
+    ``watch``: called with each setting's run as soon as it is simulated."""
     weights = sim.reference_light_weights(circuit)
     wsum = float(np.sum(weights))
     runs = []
@@ -83,15 +86,20 @@ def turn(circuit: Circuit, state, direction: str, settings, sim, *, tick=None, c
         state = res.final_state
         point = sim.sweep_point(res, direction, s, ANALYSED_CYCLES, weights, wsum)
         runs.append(SettingRun(direction=direction, setting=s, result=res, analysed_cycles=ANALYSED_CYCLES, point=point))
+        if watch is not None:
+            watch(runs[-1])
         if tick:
             tick()
     return runs
 
 
-def gather(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress=None, cancel=None, simulator=None) -> Evidence:
+def gather(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress=None, cancel=None, simulator=None,
+           watch=None) -> Evidence:
     """Every simulation the checks need, for one circuit (no ranges), sweeping
     ``settings`` points each way (``evaluate`` never asks for fewer than MIN_SETTINGS;
-    the sizing search may)."""
+    the sizing search may).  ``watch``: called with each run of either walk as soon as
+    it is simulated, from the thread that walks (the sizing search uses it to set
+    ``cancel`` once a failure is certain)."""
     sim = simulator or default_simulator()
     grid = settings_grid(settings)
     total = 2 * len(grid) + len(INRUSH_ANGLES_DEG) + 1
@@ -127,7 +135,7 @@ def gather(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress=None, can
             tick()
 
     def second_thread():
-        up = walk(circuit, grid, "up", sim, tick=tick, cancel=cancel)
+        up = walk(circuit, grid, "up", sim, tick=tick, cancel=cancel, watch=watch)
         take_singles()
         return up
 
@@ -137,7 +145,7 @@ def gather(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress=None, can
     # and switch-on runs go to whichever finishes first; about even shares on two cores
     with ThreadPoolExecutor(max_workers=1) as pool:
         second = pool.submit(second_thread)
-        down = walk(circuit, grid, "down", sim, tick=tick, cancel=cancel)
+        down = walk(circuit, grid, "down", sim, tick=tick, cancel=cancel, watch=watch)
         bottom = refine_drop_out(circuit, down, sim, cancel=cancel)
         take_singles()
         up = second.result()

@@ -12,9 +12,10 @@
   units of each group a given breaker holds.
 
 The searches run a coarser sweep than ``evaluate`` (``SEARCH_SETTINGS`` points); the
-correction device is then confirmed by a full ``evaluate``.  The rating check bounds
-the lamp counts before any simulation, and the circuit as it is is judged by its own
-full evaluation.
+correction device is then confirmed by a full ``evaluate``.  A probe of the correction
+search, asked only pass or fail, stops at its first failure that the full judging
+cannot excuse (``_FailureWatch``).  The rating check bounds the lamp counts before any
+simulation, and the circuit as it is is judged by its own full evaluation.
 """
 from __future__ import annotations
 
@@ -22,14 +23,15 @@ import dataclasses
 import math
 from concurrent.futures import ThreadPoolExecutor
 from functools import lru_cache
-from threading import Lock
+from threading import Event, Lock
 
 import numpy as np
 
 from compat import breaker_band, derating
 from compat import checks as ck
-from compat.evaluate import MIN_SETTINGS, evaluate, gather, judge
+from compat.evaluate import MIN_SETTINGS, TRIM_MAX_SETTING, UNTRIMMED_MAX_SETTING, evaluate, gather, judge
 from compat.report import Status, Verdict
+from compat.runs import Cancelled, SettingRun
 from compat.switch_on import (MAX_COUNT, breaker_max_counts, default_simulator, max_passing, min_passing,
                                peak_line_current_a, switch_on_runs, with_count)
 from loads.circuit import Circuit
@@ -86,6 +88,78 @@ def _failing_checks(circuit: Circuit, simulator, settings: int) -> tuple[str, ..
     deterministic, so a probe is simulated once."""
     ev = gather(circuit, settings=settings, simulator=simulator)
     return tuple(r.id for r in judge(ev) if r.status is Status.FAIL)
+
+
+class _FailureWatch:
+    """Watches a probe's sweep runs as they are simulated and stops the probe (sets its
+    cancel event) at the first failure that its full judging cannot excuse, so a probe
+    that fails need not run to its end.  Only a failure certain on one run alone counts:
+
+    * flicker or holding failing on a lit run judged by itself (each is a failure of that
+      run, whatever the other runs show: ``checks.check_flicker``, the light swinging
+      below the mains frequency; ``checks.check_holding``, early drop-outs with unsteady
+      light), never on the up walk's first lit run, the pop-on ``check_flicker`` leaves out;
+    * at a setting above the bottom of the travel that ``evaluate`` may excuse (above
+      ``UNTRIMMED_MAX_SETTING``, or ``TRIM_MAX_SETTING`` with a low-end trim): a failure
+      there stays a failure of the whole sweep (``evaluate._bottom_of_travel``).
+
+    Where no such failure shows, the probe runs to its end and is judged in full, so the
+    answer is always the full judging's; the watch only knows it sooner."""
+
+    DECIDING = ("flicker", "holding")
+
+    def __init__(self, circuit: Circuit, simulator, among, tolerated):
+        sim = simulator or default_simulator()
+        w = np.asarray(sim.reference_light_weights(circuit), dtype=float)
+        self.weights = w / w.sum() if w.sum() > 0 else w          # as ``evaluate.gather`` weighs the light
+        self.circuit = circuit
+        self.ids = [cid for cid in self.DECIDING if cid in among and cid not in tolerated]
+        self.above = TRIM_MAX_SETTING if circuit.dimmer.low_end_trim else UNTRIMMED_MAX_SETTING
+        self.stop = Event()
+        self.failed: str | None = None
+        self.up_lit_seen = False            # the up walk runs in one thread, in order of setting
+        # the two walks' threads judge one at a time (a first judging of flicker may
+        # build the reference lamp's curve, which is written to a cache file)
+        self.lock = Lock()
+
+    def __call__(self, run: SettingRun) -> None:
+        lit = run.light_fraction(self.weights) > ck.LIT_FRACTION
+        pop_on = False
+        if run.direction == "up" and lit and not self.up_lit_seen:
+            self.up_lit_seen, pop_on = True, True
+        if self.stop.is_set() or not lit or run.setting <= self.above + 1e-9:
+            return
+        with self.lock:
+            self._judge(run, pop_on)
+
+    def _judge(self, run: SettingRun, pop_on: bool) -> None:
+        for cid in self.ids:
+            if cid == "flicker" and not pop_on:
+                res = ck.check_flicker(self.circuit, (run,), self.weights)
+            elif cid == "holding":
+                res = ck.check_holding(self.circuit, (run,), self.weights)
+                if res.status is Status.FAIL and not res.details.get("unsteady_settings"):
+                    continue                 # only the unsteady-light failure is one run's own
+            else:
+                continue
+            if res.status is Status.FAIL:
+                self.failed = cid
+                self.stop.set()
+                return
+
+
+def _passes(circuit: Circuit, simulator, settings: int, among, tolerated) -> bool:
+    """Whether no check among ``among`` fails but those ``tolerated`` on a probe of
+    ``settings`` points, judged as ``_failing_checks`` judges it; a probe is stopped as
+    soon as a failure is certain (``_FailureWatch``)."""
+    watch = _FailureWatch(circuit, simulator, among, tolerated)
+    try:
+        ev = gather(circuit, settings=settings, simulator=simulator, cancel=watch.stop, watch=watch)
+    except Cancelled:
+        if watch.failed is None:
+            raise
+        return False
+    return {r.id for r in judge(ev) if r.status is Status.FAIL and r.id in among} <= set(tolerated)
 
 
 def rating_count_bound(circuit: Circuit, index: int) -> int:
@@ -198,7 +272,7 @@ def smallest_correction(circuit: Circuit, simulator=None, known=None) -> dict | 
         def ok(c, r=r):
             cc = dataclasses.replace(circuit, correction=correction_device(circuit, c, r), ranges=())
             try:
-                return set(_failing(cc, _ALL, simulator)) <= tolerated
+                return _passes(cc, simulator, SEARCH_SETTINGS, _ALL, tolerated)
             except RuntimeError:            # the simulator gave up on this circuit: not a pass
                 return False
 
@@ -244,7 +318,7 @@ def smallest_correction(circuit: Circuit, simulator=None, known=None) -> dict | 
         fixed = dataclasses.replace(circuit, correction=dev, ranges=())
         low = dataclasses.replace(circuit, correction=correction_device(circuit, c * (1 - CAPACITOR_TOLERANCE), r),
                                   ranges=())
-        if set(_failing(low, ck.CHECK_IDS, simulator, settings=MIN_SETTINGS)) <= tolerated:
+        if _passes(low, simulator, MIN_SETTINGS, ck.CHECK_IDS, tolerated):
             full = evaluate(fixed, simulator=simulator)
             if {x.id for x in full.checks if x.status is Status.FAIL} <= tolerated:
                 break

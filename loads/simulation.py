@@ -497,10 +497,16 @@ def _half_cycles(hc: np.ndarray, t: np.ndarray, light: np.ndarray, kinds) -> Hal
         mean_i = hc[:, K.H_I] / span_eff
     ng = light.shape[0]
     lt = np.full((len(hc), ng), np.nan)
+    # each half-cycle's samples: t is uniform and rising, so they are one slice,
+    # [first t ≥ its start, first t ≥ its end)
+    with np.errstate(invalid="ignore"):
+        lo = np.searchsorted(t, eff - 1e-12, side="left")
+        hi = np.searchsorted(t, starts + span - 1e-12, side="left")
     for j in range(len(hc)):
-        m = (t >= eff[j] - 1e-12) & (t < starts[j] + span[j] - 1e-12) if np.isfinite(span[j]) else np.zeros(len(t), bool)
-        if m.any():
-            lt[j] = light[:, m].mean(axis=1)
+        if np.isfinite(span[j]) and hi[j] > lo[j]:
+            # the same samples in the layout a boolean mask gives (column-major), so the
+            # sums are added in the same order and the means are the same to the bit
+            lt[j] = np.asfortranarray(light[:, lo[j]:hi[j]]).mean(axis=1)
     k = np.round(starts / span) if len(hc) else np.zeros(0)
     polarity = np.where(k % 2 == 0, 1, -1)
     return HalfCycles(start_s=starts, polarity=polarity, firing_angle_deg=hc[:, K.H_FIRE],

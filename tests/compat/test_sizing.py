@@ -193,3 +193,41 @@ def test_count_search_simulates_no_count_the_rating_refuses(monkeypatch):
     assert probed and all(ck.check_rating(p).status is not Status.FAIL for p in probed)
     assert c not in probed                                   # the full check of the circuit is reused
     assert [(v["fewest"], v["most"]) for v in out.values()] == [(2, 3), (None, 5)]
+
+
+@pytest.mark.regression
+@pytest.mark.slow
+@pytest.mark.parametrize("capacitance_nf, settings", [(26.4, 21), (37.6, 21), (54.4, 21), (22.0, 11), (33.0, 11)])
+def test_a_probe_stopped_early_answers_as_the_full_judging(monkeypatch, capacitance_nf, settings):
+    # The correction search stops a probe at the first failure its full judging cannot
+    # excuse.  Regression (our own output, no outside source): the demo with the devices
+    # the pinned search probes (3.3 kΩ; 26.4, 37.6 and 54.4 nF are the low ends of 33, 47
+    # and 68 nF parts on the full sweep), judged both ways; the stopped probes stop early.
+    import compat.checks as ck
+    import compat.sizing as sz
+    from compat.evaluate import gather, judge
+    from loads.catalogue import demo_circuit
+    base = dataclasses.replace(demo_circuit(), ranges=())
+    c = dataclasses.replace(base, correction=sz.correction_device(base, capacitance_nf * 1e-9, 3300.0))
+    among = set(ck.CHECK_IDS) if settings == 21 else sz._ALL
+    watches = []
+
+    class Recording(sz._FailureWatch):
+        def __init__(self, *a):
+            super().__init__(*a)
+            self.runs = 0
+            watches.append(self)
+
+        def __call__(self, run):
+            self.runs += 1
+            super().__call__(run)
+
+    monkeypatch.setattr(sz, "_FailureWatch", Recording)
+    quick = sz._passes(c, None, settings, among, set())
+    full = {r.id for r in judge(gather(c, settings=settings)) if r.status is Status.FAIL} & among
+    assert quick == (not full)
+    (w,) = watches
+    if not quick:
+        assert w.failed in full and w.runs < 2 * settings     # stopped before both walks ended
+    else:
+        assert w.failed is None and w.runs == 2 * settings
