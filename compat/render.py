@@ -186,6 +186,14 @@ def render_sizing(result: dict) -> str:
     else:
         lines.append("Load-correction device: none suggested — nothing a bypass cures is failing, or no "
                      "R–C bypass up to 10 µF cures it.")
+    b = result.get("bleeder")
+    if b:
+        lines.append(f"Bleeders: {b['group']} cannot see the dimmer's phase (no discharge path while the switch is "
+                     "off); with constant-current bleeders of "
+                     + ", ".join(f"{ma:.0f} mA per lamp in {k}" for k, ma in b["bleeder_ma"].items())
+                     + f" (closed form C·ΔV/Δt) the circuit would be {b['verdict']}"
+                     + (f" (failing: {', '.join(b['failing'])})" if b["failing"] else "")
+                     + ": choose lamps or drivers made for this dimmer's edge, with a bleeder of that order.")
     e = result.get("edge")
     if e:
         lines.append(f"With a {e['edge']}-edge dimmer the circuit would be {e['verdict']}"

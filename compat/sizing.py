@@ -27,7 +27,7 @@ from threading import Event, Lock
 
 import numpy as np
 
-from compat import breaker_band, derating
+from compat import breaker_band, derating, phase_sense
 from compat import checks as ck
 from compat.evaluate import MIN_SETTINGS, TRIM_MAX_SETTING, UNTRIMMED_MAX_SETTING, evaluate, gather, judge
 from compat.report import Status, Verdict
@@ -341,7 +341,9 @@ def smallest_correction(circuit: Circuit, simulator=None, known=None) -> dict | 
 
 def size(circuit: Circuit, progress=None, simulator=None) -> dict:
     """All remedies for ``circuit`` (see module docstring).  Keys: verdict, counts,
-    correction, edge, rating_needed_w, breaker_curve, breaker_counts, surge_peak_a."""
+    correction, edge, rating_needed_w, breaker_curve, breaker_counts, surge_peak_a, bleeder
+    (None, or where lamps cannot see the dimmer's phase: group, bleeder_ma by group,
+    verdict and failing with those bleeders)."""
     base = dataclasses.replace(circuit, ranges=())
     report = evaluate(base, simulator=simulator)
     failing = [c.id for c in report.checks if c.status is Status.FAIL]
@@ -383,7 +385,20 @@ def size(circuit: Circuit, progress=None, simulator=None) -> dict:
             curve = str(c) if c is not None else None
             bcounts = breaker_max_counts(base, simulator)
         step()
-        return counts, edge, peak, curve, bcounts
+        return counts, edge, peak, curve, bcounts, bleeders()
+
+    def bleeders():
+        """Where lamps cannot see the dimmer's phase: the closed-form bleeder each needs
+        (``compat.phase_sense``) and the full check of the circuit with them."""
+        found = {c.id: c for c in report.checks}["dimming-range"].details.get("phase_unseen")
+        if found is None:
+            return None
+        fixed, given = phase_sense.with_bleeders(base)
+        if not given:
+            return None
+        check = evaluate(fixed, simulator=simulator)
+        return {"group": found["group"], "bleeder_ma": {k: 1000 * v for k, v in given.items()},
+                "verdict": str(check.verdict), "failing": [c.id for c in check.checks if c.status is Status.FAIL]}
 
     # The correction search is the longest chain of probes, each waiting on the one
     # before; the lamp counts, the other edge and the breaker's counts do not depend on
@@ -399,10 +414,10 @@ def size(circuit: Circuit, progress=None, simulator=None) -> dict:
                 correction["verdict"] = str(check.verdict)
                 correction["failing"] = [c.id for c in check.checks if c.status is Status.FAIL]
         step()
-        counts, edge, peak, curve, bcounts = others.result()
+        counts, edge, peak, curve, bcounts, bleed = others.result()
     use = derating.rating_use(base.dimmer, base.loads)
     need = base.dimmer.rated_load_w * use.utilisation
     step()
     return {"circuit": base.name, "verdict": str(report.verdict), "failing": failing, "counts": counts,
             "correction": correction, "edge": edge, "rating_needed_w": need, "derating_factor": use.factor,
-            "breaker_curve": curve, "breaker_counts": bcounts, "surge_peak_a": peak}
+            "breaker_curve": curve, "breaker_counts": bcounts, "surge_peak_a": peak, "bleeder": bleed}

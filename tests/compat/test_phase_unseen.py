@@ -126,3 +126,18 @@ def test_the_bleeder_size_is_the_closed_form():
     g = ElectronicDriver(name="lamp", count=1, rated_power_w=9.0, rated_voltage_v=230.0, input_capacitance_f=100e-9)
     assert bleeder_needed_a(g, 50.0) == pytest.approx(100e-9 * 0.8 * 2 ** 0.5 * 230.0 / 2.5e-3, rel=1e-12)
     assert bleeder_needed_a(g, 50.0) == pytest.approx(0.01041, rel=1e-3)
+
+
+@pytest.mark.slow
+def test_size_gives_the_bleeder_and_the_verdict_with_it():
+    # Measured when the line was added (a regression check, not an expectation written
+    # before): with the closed-form 10 mA constant-current bleeder in each of the eight
+    # drivers the corpus case becomes suitable-with-cautions — the verdict the trade
+    # expects of it (suitable or with cautions, tests/data/corpus/cases.toml), reached
+    # once the drivers can see the trailing edge.
+    from compat.sizing import size
+    out = size(_corpus("drv-te-neutral-8x12w"))
+    b = out["bleeder"]
+    assert b is not None and b["group"] == "LED downlight 12 W with separate driver"
+    assert b["bleeder_ma"][b["group"]] == pytest.approx(10.41, rel=1e-3)
+    assert b["verdict"] in ("suitable", "suitable-with-cautions"), b
