@@ -158,12 +158,12 @@ def pack(d: "ElectronicDriver") -> np.ndarray:
                      d.input_capacitance_f])
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def _polarity(mode):
     return -1.0 if mode & NEGATIVE else 1.0
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def _bridge(v, vbus, p, mode):
     """Bridge current into the bus, |i_br| (linear while the conduction mode lasts)."""
     if mode & CONDUCTING:
@@ -171,7 +171,7 @@ def _bridge(v, vbus, p, mode):
     return 0.0
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_current(v, y, xo, p, mode):
     i = _polarity(mode) * _bridge(v, y[xo], p, mode)
     k = p[_BLKIND]
@@ -184,7 +184,7 @@ def unit_current(v, y, xo, p, mode):
     return i
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_rhs(v, y, xo, p, mode, level, F):
     vbus = y[xo]
     i_conv = 0.0
@@ -195,14 +195,14 @@ def unit_rhs(v, y, xo, p, mode, level, F):
         F[xo + 1] = (v - y[xo + 1]) / p[_RD]
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_mass(p, M, xo):
     M[xo] = p[_CB]
     if p[_RD] > 0.0:
         M[xo + 1] = p[_CIN]
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_guards(v, y, xo, p, mode, g, k):
     if mode & CONDUCTING:
         g[k] = _polarity(mode) * v - p[_VDD] - y[xo]
@@ -215,7 +215,7 @@ def unit_guards(v, y, xo, p, mode, g, k):
     return k + 2
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_mode(v, y, xo, p, mode):
     vbus = y[xo]
     if mode & RUNNING:
@@ -230,13 +230,13 @@ def unit_mode(v, y, xo, p, mode):
     return m
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def sense(v, p):
     """1 while the phase detector sees voltage, else 0."""
     return 1.0 if abs(v) > p[_VSENSE] else 0.0
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def decoded_level(conduction_share, level, p):
     """New level after one half-cycle in which the detector saw ``conduction_share``."""
     if p[_DIMM] == 0.0:
@@ -246,6 +246,6 @@ def decoded_level(conduction_share, level, p):
     return level + FILTER_GAIN * (target - level)
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_light_state(v, y, xo, p, mode, level):
     return level if (mode & RUNNING) else 0.0

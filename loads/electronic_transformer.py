@@ -112,7 +112,7 @@ def lamp_temperature_k(d: ElectronicTransformer, power_w: float) -> float:
                                xtol_k=1e-6)
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_current(v, y, xo, p, mode):
     if p[_ACTIVE] <= 0.0:
         return 0.0
@@ -120,27 +120,27 @@ def unit_current(v, y, xo, p, mode):
     return v / p[_REQ] / (1.0 + math.exp(-x))
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_rhs(v, y, xo, p, mode, level, F):
     power = max(v * unit_current(v, y, xo, p, mode), 0.0)
     F[xo] = _fil.temperature_rate_k_s(y[xo], power, p[N_HEAD:])
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_mass(p, M, xo):
     M[xo] = 1.0
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_guards(v, y, xo, p, mode, g, k):
     return k          # no discrete modes (see the start threshold above)
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_mode(v, y, xo, p, mode):
     return 0
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_light_state(v, y, xo, p, mode, level):
     return y[xo]

@@ -157,20 +157,20 @@ def pack(lamp: Filament) -> np.ndarray:
     return p
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def resistance_ohm(t_k, p):
     """Resistance of one filament at temperature t_k [K]; p from ``pack`` -> [Ohm]."""
     return resistivity_ohm_m(t_k) * p[P_LENGTH_M] / p[P_CROSS_SECTION_M2]
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def radiated_power_w(t_k, p):
     """Net power radiated by one filament at t_k [K] to surroundings at ambient -> [W]."""
     t_amb = p[P_AMBIENT_K]
     return emissivity(t_k) * STEFAN_BOLTZMANN_W_M2_K4 * p[P_AREA_M2] * (t_k ** 4 - t_amb ** 4)
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def temperature_rate_k_s(t_k, power_w, p):
     """dT/dt of one filament at t_k [K] taking electrical power power_w [W] -> [K/s]."""
     return (power_w - radiated_power_w(t_k, p)) / (p[P_MASS_KG] * specific_heat_j_kg_k(t_k))

@@ -41,6 +41,18 @@ step to a few microseconds (see README, Speed).  numba's on-disk cache of this m
 is keyed on this file's text alone: it does not see edits to the load modules whose
 unit functions are compiled into it; after such an edit clear loads/__pycache__/kernel.*
 (or change this file).
+
+Compile time (the first run, measured with numba 0.68): numba compiles every function
+on its own (type inference, lowering, LLVM, a cache entry), and links and optimises
+each callee's machine code again into every caller, so a function costs ~0.05-0.1 s
+however small and a wrapper with two dozen array arguments ~0.5 s.  The load modules'
+unit functions and the three wrappers of ``run`` (``_settle_modes``, ``_bail_forward``,
+``_modes_neutral``) are therefore inlined by numba itself (``inline="always"``: its
+IR-level inlining, before typing) into their callers and never compiled on their
+own.  The larger functions stay separate: inlining everything made the compile slower
+(numba's SSA and rewrite passes grow faster than linearly with a function's size).
+``run`` copies arrays with ``_copy_into``, not slice assignment, which would compile
+numba's shape-mismatch message with its string formatting (~1.5 s).
 """
 from __future__ import annotations
 
@@ -1232,7 +1244,7 @@ def _seg_above(a, b, level):
     return 1.0 - x if b >= level else x
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def _modes_neutral(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, snap):
     """Update the modes after a located crossing; True if nothing the residual reads
     changed (switch on/off, diac, clamp, load modes)."""
@@ -1252,7 +1264,7 @@ def _modes_neutral(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, snap):
     return True
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def _bail_forward(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F0, G, work, F1, rhs,
                   counters, nstate):
     """Where no converging step can be found, one backward-Euler step of 1 ns (the
@@ -1278,7 +1290,8 @@ def _bail_forward(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M
 
 @numba.njit(cache=True, _nrt=False)
 def _copy_into(dst, src):
-    """dst[:] = src without numba's temporary copy (which needs its runtime)."""
+    """dst[:] = src without numba's temporary copy (which needs its runtime) and without
+    its shape-mismatch error message (which costs ~1.5 s of compiling)."""
     for i in range(src.shape[0]):
         dst[i] = src[i]
 
@@ -1349,7 +1362,7 @@ def _locate_event(t, h, ng0, y, F0, J, M, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP
     return hi, bail
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def _settle_modes(t, y, P, IP, S, Q, HC, gk, gxo, gpo, gnp, gn, GP, scale, wt, M, J, A, piv, F0, G, work, F1, rhs,
                   nstate):
     """Mode update, part 2: modes and a consistent state at t, alternated until the
@@ -1404,7 +1417,9 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
     og = np.zeros(no)
     o1 = np.zeros(no)
     snap = np.zeros(4 + IP[NG], dtype=np.int64)
-    nstate = np.array([-1.0, 1.0])   # [c of the factored iteration matrix, Newton's θ/(1 − θ)]
+    nstate = np.empty(2)    # [c of the factored iteration matrix, Newton's θ/(1 − θ)]
+    nstate[0] = -1.0
+    nstate[1] = 1.0
     half = math.pi / P[OMEGA]
     for i in range(n):
         wt[i] = 1.0 / (atol[i] + P[RTOL] * abs(y[i]))
@@ -1437,7 +1452,7 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
     outputs(t, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, o0)
     ks = 0
     while ks < OUT.shape[0] and t_samp0 + ks * dt_samp <= t + 1e-15:
-        OUT[ks, :] = o0
+        _copy_into(OUT[ks], o0)
         ks += 1
     h = 1e-7
     fresh = True
@@ -1546,8 +1561,8 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
             ks += 1
         Q[DIDT] = (y1[ISW] - y[ISW]) / h      # the switch current's slope over the last step
         t = t + h
-        y[:] = y1
-        o0[:] = o1
+        _copy_into(y, y1)
+        _copy_into(o0, o1)
         counters[0] += 1
         # --- mode update: the events due at t by the clock (gate window end, trailing
         # turn-off, a trip delay's end, a dip's end, the half-cycle boundary, the firing),
@@ -1607,6 +1622,6 @@ def run(t0, t_end, y, P, IP, S, Q, gk, gxo, gpo, gnp, gn, GP, atol, scale,
         else:
             h = h * fac
     while ks < OUT.shape[0]:
-        OUT[ks, :] = o0
+        _copy_into(OUT[ks], o0)
         ks += 1
     return 0

@@ -59,21 +59,21 @@ def n_states(d: Linear) -> int:
     return int(d.inductance_h > 0) + int(d.series_capacitance_f > 0)
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def _vc(y, xo, p):
     if p[_CS] > 0.0:
         return y[xo + 1] if p[_L] > 0.0 else y[xo]
     return 0.0
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_current(v, y, xo, p, mode):
     if p[_L] > 0.0:
         return y[xo]
     return (v - _vc(y, xo, p)) / p[_R]
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_rhs(v, y, xo, p, mode, level, F):
     i = unit_current(v, y, xo, p, mode)
     k = xo
@@ -84,7 +84,7 @@ def unit_rhs(v, y, xo, p, mode, level, F):
         F[k] = i
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_mass(p, M, xo):
     k = xo
     if p[_L] > 0.0:
@@ -94,17 +94,17 @@ def unit_mass(p, M, xo):
         M[k] = p[_CS]
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_guards(v, y, xo, p, mode, g, k):
     return k
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_mode(v, y, xo, p, mode):
     return 0
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_light_state(v, y, xo, p, mode, level):
     i = unit_current(v, y, xo, p, mode)
     return i * i * p[_R] / p[_PR]

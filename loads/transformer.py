@@ -98,7 +98,7 @@ def pack(t: "MagneticTransformer", frequency_hz: float) -> np.ndarray:
     return np.concatenate([np.array(head), _fil.pack(lamp)])
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def magnetising_current_a(lam, p):
     lk = p[_LK]
     if abs(lam) <= lk:
@@ -106,18 +106,18 @@ def magnetising_current_a(lam, p):
     return math.copysign(lk / p[_LM] + (abs(lam) - lk) / p[_LSAT], lam)
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def _vm(y, xo, p):
     r_lamp = p[_N2] * _fil.resistance_ohm(y[xo + 2], p[N_HEAD:])
     return (y[xo] - magnetising_current_a(y[xo + 1], p)) / (1.0 / p[_RC] + 1.0 / r_lamp)
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_current(v, y, xo, p, mode):
     return y[xo]
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_rhs(v, y, xo, p, mode, level, F):
     vm = _vm(y, xo, p)
     F[xo] = v - p[_RW] * y[xo] - vm
@@ -127,24 +127,24 @@ def unit_rhs(v, y, xo, p, mode, level, F):
     F[xo + 2] = _fil.temperature_rate_k_s(t, pl, p[N_HEAD:])
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_mass(p, M, xo):
     M[xo] = p[_LS]
     M[xo + 1] = 1.0
     M[xo + 2] = 1.0
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_guards(v, y, xo, p, mode, g, k):
     g[k] = abs(y[xo + 1]) - p[_LK]
     return k + 1
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_mode(v, y, xo, p, mode):
     return SATURATED if abs(y[xo + 1]) > p[_LK] else 0
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def unit_light_state(v, y, xo, p, mode, level):
     return y[xo + 2]

@@ -56,7 +56,7 @@ FIT_MIN_K = 300.0                      # TOLIAS_2017: lower end of the solid-pha
 HEAT_CAPACITY_FIT_MAX_K = 3080.0       # TOLIAS_2017: upper end of the c_p fit
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def resistivity_ohm_m(t_k: float) -> float:
     """Electrical resistivity of tungsten at t_k [K] -> [Ohm·m] (TOLIAS_2017)."""
     t = t_k
@@ -64,14 +64,14 @@ def resistivity_ohm_m(t_k: float) -> float:
     return rho_uohm_cm * UOHM_CM_TO_OHM_M
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def emissivity(t_k: float) -> float:
     """Total hemispherical emissivity of tungsten at t_k [K] -> [1] (TOLIAS_2017)."""
     x = t_k - 300.0
     return 1.85076e-2 + x * (1.6048e-4 - 1.762608e-8 * x)
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def molar_heat_capacity_j_mol_k(t_k: float) -> float:
     """Isobaric molar heat capacity at t_k [K] -> [J/(mol·K)] (TOLIAS_2017, held above
     3080 K at its 3080 K value)."""
@@ -80,7 +80,7 @@ def molar_heat_capacity_j_mol_k(t_k: float) -> float:
             + 1.406637e4 / (t * t))
 
 
-@numba.njit(cache=True, _nrt=False)
+@numba.njit(cache=True, _nrt=False, inline="always")
 def specific_heat_j_kg_k(t_k: float) -> float:
     """Isobaric specific heat at t_k [K] -> [J/(kg·K)]: molar c_p / 183.84 g/mol
     (TOLIAS_2017; held above 3080 K at its 3080 K value)."""
