@@ -230,7 +230,7 @@ def _fail(message: str) -> int:
     return 2
 
 
-COMPILING = f"{PROG}: compiling the simulator (first run only, about 30 s)…"
+COMPILING = f"{PROG}: compiling the simulator (first run only, 15–40 s)…"
 
 
 def _simulator():

@@ -649,7 +649,7 @@ def _settled_et_lamps(circuit: Circuit, pk: _Packed, y: np.ndarray, out: np.ndar
 
 
 # ---------------------------------------------------------------------------
-# The first run: numba compiles the integrator (20-60 s) and caches it on disk
+# The first run: numba compiles the integrator (15-40 s) and caches it on disk
 # ---------------------------------------------------------------------------
 
 # Called once per process, with no argument, just before the first simulation when the
