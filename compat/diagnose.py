@@ -549,9 +549,10 @@ def dimmed_current_ratio(case: Case) -> float | None:
     return float(p.load_rms_a / full.load_rms_a)
 
 
-# Engineering choice: lamps whose lowest light turning down is a quarter of full or more
+# Engineering choice: lamps whose lowest steady light is a quarter of full or more
 # "hardly dim" to a customer: a quarter of the light looks like half of it (the square
-# law of compat.perception).
+# law of compat.perception).  Steady light, as dimming-range reads it: settings where
+# the light is unsteady are what a customer calls flicker, another symptom.
 STAYS_BRIGHT_MIN = 0.25
 
 
@@ -561,9 +562,9 @@ def _lowest_lit(runs, weights) -> float | None:
     return min(lit) if lit else None
 
 
-def lowest_lit_light(case: Case) -> float | None:
-    """The lamps' lowest light turning down, over the settings at which they are lit [1]."""
-    return _lowest_lit(case.evidence.down, case.evidence.light_weights)
+def lowest_steady_light(case: Case) -> float | None:
+    """The lamps' lowest steady light, as ``dimming-range`` finds it (None: never steady) [1]."""
+    return case.checks["dimming-range"].details.get("lowest_stable_light")
 
 
 def trial_beside_light(case: Case) -> float | None:
@@ -894,10 +895,11 @@ def _late_start_finding(m: Mechanism, symptom: Symptom, case: Case) -> Finding:
 
 def _unseen_finding(case: Case) -> Finding:
     """Lamps that cannot see the phase (``compat.phase_sense``, read from dimming-range)
-    and stay bright: their lowest lit light at least ``STAYS_BRIGHT_MIN``."""
+    and stay bright: their lowest steady light at least ``STAYS_BRIGHT_MIN``."""
     found = case.checks["dimming-range"].details.get("phase_unseen")
-    low = lowest_lit_light(case)
-    low_text = "the lamps are never lit" if low is None else f"their lowest light turning down is {100 * low:.0f} %"
+    low = lowest_steady_light(case)
+    low_text = ("the lamps never give steady light" if low is None else
+                f"their lowest steady light is {100 * low:.0f} %")
     if found is None:
         reads = any(isinstance(g, ElectronicDriver) and g.dimmable for g in case.circuit.loads)
         return Finding(reproduces=False, excess=-1.0,
