@@ -269,3 +269,18 @@ def test_a_filament_lamp_beside_the_lamps_tells_unseen_phase_from_not_dimmable(s
     unseen, not_dimmable = ((sep.expected_if_top, sep.expected_if_runner_up) if mechanism is Mechanism.PHASE_UNSEEN
                             else (sep.expected_if_runner_up, sep.expected_if_top))
     assert unseen <= 0.1 and not_dimmable >= 0.25, sep
+
+
+@pytest.mark.slow
+def test_the_trial_lamp_beside_narrows_stays_bright():
+    # Expected before the key existed: the installer who tried the 60 W filament lamp
+    # beside the lamps and saw them dim nearly to dark (0.05 of full) is told phase-unseen,
+    # every case agreeing (the bright-te scenario's cases all read about 0.05 on it); one
+    # who saw them stay at 0.6 of full agrees with no simulated case, and is told so.
+    c = read_circuit(DATA / "bright-te-neutral-3x7w.toml")
+    seen_dark = diagnose(c, Symptom.STAYS_BRIGHT, observations=[parse_observation("trial_lamp_beside=5%")])
+    assert seen_dark.ranked[0].mechanism is Mechanism.PHASE_UNSEEN and len(seen_dark.cases_kept) == seen_dark.cases_run
+    seen_lit = diagnose(c, Symptom.STAYS_BRIGHT, observations=[parse_observation("trial_lamp_beside=0.6")])
+    assert any("No simulated case agrees" in n for n in seen_lit.notes)
+    with pytest.raises(InputError):
+        parse_observation("trial_lamp_beside=1.5")
