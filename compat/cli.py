@@ -606,7 +606,8 @@ def build_parser(open_app: Callable[[str | None], int | None] | None = None) -> 
                         "buzzing, trips-at-switch-on, runs-hot, lamps-fail-early, stays-bright")
     p.add_argument("--observed", action="append", metavar="KEY=VALUE",
                    help="what was seen or read: steady_down_to, comes_on_at (knob 0-1 or %%), off_voltage_v, "
-                        "off_current_a, full_current_a, crest_factor, dc_current_a, light_when_off=yes|no")
+                        "off_current_a, full_current_a, crest_factor, dc_current_a, trial_lamp_beside (0-1 or %%), "
+                        "light_when_off=yes|no")
     g = p.add_mutually_exclusive_group()
     g.add_argument("--json", action="store_true")
     g.add_argument("--markdown", action="store_true")

@@ -959,6 +959,7 @@ OBSERVATIONS = {
     "steady_down_to": "steady-down-to", "comes_on_at": "comes-on-at", "off_voltage_v": "off-voltage",
     "off_current_a": "off-current",
     "full_current_a": "full-current", "crest_factor": "crest-factor", "dc_current_a": "dc-current",
+    "trial_lamp_beside": "trial-lamp-beside",
     "light_when_off": None,
 }
 
@@ -982,9 +983,9 @@ def parse_observation(text: str) -> Observation:
         raise InputError(f"{raw!r} is not a number", key=f"--observed {key}") from None
     if pct:
         v /= 100.0
-    if not math.isfinite(v) or v < 0 or (key in ("steady_down_to", "comes_on_at") and v > 1.0):
-        raise InputError(f"{raw!r} is out of range" + (" (a knob position 0–1 or 0–100 %)"
-                                                       if key in ("steady_down_to", "comes_on_at") else ""),
+    share = key in ("steady_down_to", "comes_on_at", "trial_lamp_beside")
+    if not math.isfinite(v) or v < 0 or (share and v > 1.0):
+        raise InputError(f"{raw!r} is out of range" + (" (a share 0–1 or 0–100 %)" if share else ""),
                          key=f"--observed {key}")
     return Observation(key=key, value=v)
 
