@@ -370,16 +370,15 @@ def tripped_half_cycles(circuit: Circuit, run: SettingRun) -> int:
     return int(np.sum(run.half_cycles.peak_current_a >= TRIP_REACHED * d.trip_current_a))
 
 
-def _unseen_first(circuit: Circuit, runs: Sequence[SettingRun]) -> tuple[tuple[str | None, str], ...]:
-    """The remedy option for lamps that cannot see the phase (``compat.phase_sense``),
-    to lead a remedy's options where they apply; none otherwise."""
-    found = phase_sense.unseen(circuit, runs)
+def _unseen_first(circuit: Circuit, found: dict | None) -> tuple[tuple[str | None, str], ...]:
+    """The remedy option for lamps that cannot see the phase (``found``: what
+    ``phase_sense.unseen`` found), to lead a remedy's options where it applies."""
     return ((None, phase_sense.remedy(circuit, found)),) if found is not None else ()
 
 
-def _trip_remedy(circuit: Circuit, runs: Sequence[SettingRun]) -> str:
+def _trip_remedy(circuit: Circuit, found: dict | None) -> str:
     """What to change when the dimmer's protection trips on the lamps' current."""
-    return _offer(circuit, *_unseen_first(circuit, runs), (None, "fewer capacitor-input lamps on this dimmer"),
+    return _offer(circuit, *_unseen_first(circuit, found), (None, "fewer capacitor-input lamps on this dimmer"),
                   (None, "a dimmer with a higher rating (and trip level)"))
 
 
@@ -569,13 +568,14 @@ def check_repetitive_peak(circuit: Circuit, runs: Sequence[SettingRun]) -> Check
         details["protection_trips"] = True
         return _res("repetitive-peak", Status.FAIL, peak, limit, "A", min(m, 0.0),
                     f"{trips[0]}; the current peaks reach its {d.trip_current_a:.1f} A trip level (crest factor {crest:.1f}).",
-                    remedy=_trip_remedy(circuit, runs),
+                    remedy=_trip_remedy(circuit, phase_sense.unseen(circuit, runs)),
                     sources=("TRADE",), safety=True, details=details)
     if peak > limit:
         return _res("repetitive-peak", Status.FAIL, peak, limit, "A", m,
                     f"At {_fmt_setting(worst)} the switch current peaks at {peak:.1f} A every half-cycle "
                     f"(crest factor {crest:.1f}), above its {limit:.0f} A {what}.",
-                    remedy=_offer(circuit, *_unseen_first(circuit, runs), (None, "fewer capacitor-input lamps on this dimmer"),
+                    remedy=_offer(circuit, *_unseen_first(circuit, phase_sense.unseen(circuit, runs)),
+                                  (None, "fewer capacitor-input lamps on this dimmer"),
                                   ("leading", "a trailing-edge dimmer"), ("leading", "a larger choke")),
                     sources=("TRADE",), safety=True, details=details)
     return _res("repetitive-peak", Status.PASS, peak, limit, "A", m,
@@ -963,7 +963,8 @@ def check_turn_off_surge(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckR
                "clamp_power_w": p_clamp, "clamp_power_limit_w": CLAMP_MEAN_POWER_W}
     inductive = any(load_character(g, circuit.supply.frequency_hz) == "inductive" for g in circuit.loads)
     remedy = ("Use a leading-edge dimmer for iron-core transformer loads." if inductive else
-              _offer(circuit, *_unseen_first(circuit, runs), (None, "fewer capacitor-input lamps on this dimmer"),
+              _offer(circuit, *_unseen_first(circuit, phase_sense.unseen(circuit, runs)),
+                     (None, "fewer capacitor-input lamps on this dimmer"),
                      lead="The current cut is the lamps' own surge in the wiring's inductance; the cure is "))
     absorbed = (f"; its clamp absorbs {p_clamp:.2f} W on average at {_fmt_setting(w_clamp)}, against the "
                 f"{CLAMP_MEAN_POWER_W:.2f} W a varistor of this kind is rated for" if p_clamp > 0 else "")
@@ -1014,17 +1015,18 @@ def check_dimming_range(circuit: Circuit, down: Sequence[SettingRun], up: Sequen
     stable_lit = [row for row in curve_d + curve_u + dimming_curve(bottom, weights)
                   if row["stable"] and row["light_fraction"] > LIT_FRACTION]
     details = {"down": curve_d, "up": curve_u}
-    trips = protection_summary(circuit, list(down) + list(up))
+    swept = list(down) + list(up)
+    trips = protection_summary(circuit, swept)
     if trips is not None:
         details["protection_trips"] = True
-    unseen = details["phase_unseen"] = phase_sense.unseen(circuit, list(down) + list(up))
+    unseen = details["phase_unseen"] = phase_sense.unseen(circuit, swept)
     why = (" " + phase_sense.sentence(unseen) + ".") if unseen is not None else ""
     # Engineering choice: protection acting at half the settings or more leaves no
     # dimming range worth the name; at fewer, the range is judged on the rest, with a caution.
     if trips is not None and trips[1] >= 0.5:
         return _res("dimming-range", Status.FAIL, 0.0, 100 * DIM_TARGET_LOW, "%", None,
                     trips[0] + "; there is no usable dimming range." + why,
-                    remedy=_trip_remedy(circuit, list(down) + list(up)),
+                    remedy=_trip_remedy(circuit, unseen),
                     sources=("LRC_ASSIST_DIMMING",), details=details)
     if not stable_lit:
         cure = ("See latching and holding: the dimmer does not work with this load." if circuit.dimmer.edge is Edge.LEADING
@@ -1240,7 +1242,8 @@ def check_dissipation(circuit: Circuit, runs: Sequence[SettingRun]) -> CheckResu
                     + (f" ({details['turn_off_w'] + details['clamp_w']:.1f} W of it from cutting the current at each "
                        "turn-off)" if details["turn_off_w"] + details["clamp_w"] > 0.05 * p else "")
                     + f", more than the {allowance:.1f} W the dimmer box is built to shed.",
-                    remedy=_offer(circuit, *_unseen_first(circuit, runs), (None, "a dimmer with a higher rating"),
+                    remedy=_offer(circuit, *_unseen_first(circuit, phase_sense.unseen(circuit, runs)),
+                                  (None, "a dimmer with a higher rating"),
                                   (None, "less load"), lead="Use "),
                     sources=("TRADE",), safety=True, details=details)
     return _res("dissipation", Status.PASS, p, allowance, "W", m,

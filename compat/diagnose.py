@@ -335,20 +335,22 @@ def leakage_paths(circuit: Circuit) -> dict[Mechanism, Circuit]:
     return out
 
 
-def beside_circuit(circuit: Circuit) -> Circuit:
-    """The circuit with one trial filament lamp (``TRIAL_FILAMENT_W``) added across the
-    lamps: a path that pulls their terminals down while the switch is off."""
-    lamp = Filament(name="trial filament lamp", count=1, rated_power_w=TRIAL_FILAMENT_W,
+def _trial_lamp(circuit: Circuit) -> Filament:
+    """The trial filament lamp (``TRIAL_FILAMENT_W``) for this circuit's supply."""
+    return Filament(name="trial filament lamp", count=1, rated_power_w=TRIAL_FILAMENT_W,
                     rated_voltage_v=float(circuit.supply.voltage_v))
-    return dataclasses.replace(circuit, loads=circuit.loads + (lamp,), ranges=())
+
+
+def beside_circuit(circuit: Circuit) -> Circuit:
+    """The circuit with the trial filament lamp added across the lamps: a path that
+    pulls their terminals down while the switch is off."""
+    return dataclasses.replace(circuit, loads=circuit.loads + (_trial_lamp(circuit),), ranges=())
 
 
 def trial_circuit(circuit: Circuit) -> Circuit:
-    """The circuit with its lamps replaced by one trial filament lamp
-    (``TRIAL_FILAMENT_W``): what the dimmer does with the load it was made for."""
-    lamp = Filament(name="trial filament lamp", count=1, rated_power_w=TRIAL_FILAMENT_W,
-                    rated_voltage_v=float(circuit.supply.voltage_v))
-    return dataclasses.replace(circuit, loads=(lamp,), ranges=())
+    """The circuit with its lamps replaced by the trial filament lamp: what the dimmer
+    does with the load it was made for."""
+    return dataclasses.replace(circuit, loads=(_trial_lamp(circuit),), ranges=())
 
 
 # Engineering choice: where the dimmer starts or stops firing between two settings of the
@@ -556,12 +558,6 @@ def dimmed_current_ratio(case: Case) -> float | None:
 STAYS_BRIGHT_MIN = 0.25
 
 
-def _lowest_lit(runs, weights) -> float | None:
-    lit = [float(np.mean(r.light(weights))) for r in runs]
-    lit = [x for x in lit if x > ck.LIT_FRACTION]
-    return min(lit) if lit else None
-
-
 def lowest_steady_light(case: Case) -> float | None:
     """The lamps' lowest steady light, as ``dimming-range`` finds it (None: never steady) [1]."""
     return case.checks["dimming-range"].details.get("lowest_stable_light")
@@ -573,8 +569,8 @@ def trial_beside_light(case: Case) -> float | None:
     if not case.beside_down:
         return None
     weights = np.append(np.asarray(case.evidence.light_weights, dtype=float), 0.0)
-    low = _lowest_lit(case.beside_down, weights)
-    return 0.0 if low is None else low
+    lit = [x for x in (float(np.mean(r.light(weights))) for r in case.beside_down) if x > ck.LIT_FRACTION]
+    return min(lit) if lit else 0.0
 
 
 KNOB = "engineering choice: a knob position judged by eye to a twentieth of its travel"

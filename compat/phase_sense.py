@@ -59,16 +59,13 @@ HELD_SHARE = 0.9
 def _shares(run: SettingRun, v_sense: float, leading: bool) -> tuple[float, float, float, float]:
     """(switch share, seen share, held share of the off-interval, median |v| off [V])."""
     res, hc = run.result, run.half_cycles
-    if len(hc) == 0:
-        return 0.0, 0.0, 0.0, 0.0
     dt = float(res.t_s[1] - res.t_s[0])
-    half = 0.5 / res.frequency_hz
-    n_half = max(2, int(round(half / dt)))
-    t0 = float(res.t_s[0])
+    n_half = max(2, int(round(0.5 / res.frequency_hz / dt)))
+    angle = np.arange(n_half) * (180.0 / n_half)
     v = np.abs(res.load_v)
-    switch, seen, held_n, off_n, off_v = [], [], 0, 0, []
+    switch, seen, off = [], [], []
     for start, fire, ext in zip(hc.start_s, hc.firing_angle_deg, hc.extinction_angle_deg):
-        i0 = int(round((float(start) - t0) / dt))
+        i0 = int(round((float(start) - float(res.t_s[0])) / dt))
         if i0 < 0 or i0 + n_half > v.size:
             continue
         seg = v[i0:i0 + n_half]
@@ -83,16 +80,14 @@ def _shares(run: SettingRun, v_sense: float, leading: bool) -> tuple[float, floa
         else:
             last = n_half if above[-1] >= n_half - 2 else above[-1] + 1
             seen.append((last - above[0]) / n_half)
-        angle = np.arange(n_half) * (180.0 / n_half)
-        off = seg[(angle < on_from) | (angle >= on_to)]
-        held_n += int(np.sum(off > v_sense))
-        off_n += off.size
-        off_v.append(off)
+        off.append(seg[(angle < on_from) | (angle >= on_to)])
     if not switch:
         return 0.0, 0.0, 0.0, 0.0
-    off_all = np.concatenate(off_v) if off_v else np.zeros(0)
-    return (float(np.mean(switch)), float(np.mean(seen)), held_n / off_n if off_n else 0.0,
-            float(np.median(off_all)) if off_all.size else 0.0)
+    off_all = np.concatenate(off)
+    if off_all.size == 0:
+        return float(np.mean(switch)), float(np.mean(seen)), 0.0, 0.0
+    return (float(np.mean(switch)), float(np.mean(seen)), float(np.mean(off_all > v_sense)),
+            float(np.median(off_all)))
 
 
 def unseen(circuit: Circuit, runs: Sequence[SettingRun]) -> dict | None:
