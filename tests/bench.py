@@ -26,8 +26,11 @@ simulating that span of case (c) — the reference circuit closest to the demo c
 a halogen lamp and an rc-diac dimmer, which ngspice is not asked to simulate here).
 
 Then the user's waits of issue 10, each with ours beside its goal: the first
-``dimfit demo`` (numba compiling, measured in a fresh process with empty caches, with
-the time to the first line on stderr), ``dimfit check`` of the demo in process and as
+``dimfit demo`` after ``pip install .`` (the wheel built from a copy of the sources,
+which compiles the simulator into it, installed into a temporary folder; the build
+and install time printed beside it), the first ``dimfit demo`` where nothing is
+compiled yet (numba compiling, in a fresh process with empty caches, with the time to
+the first line on stderr), ``dimfit check`` of the demo in process and as
 a whole process, ``dimfit size`` of the demo, the stiff-supply case (case (c)'s deck
 at 120 V 60 Hz behind 100 µH with a 100 nF input capacitor, per cycle over 400 cycles,
 against ngspice in the same run) and one setting of the demo.  ``--quick`` leaves out
@@ -102,13 +105,15 @@ def _stiff_circuit():
     return dataclasses.replace(c, name="stiff", supply=sup, loads=(lamp,))
 
 
-def _process(args: list[str], env: dict | None = None, code: str | None = None) -> tuple[float, float, int]:
+def _process(args: list[str], env: dict | None = None, code: str | None = None,
+             where: Path = REPO) -> tuple[float, float, int]:
     """(wall time, time to the first byte on stderr, exit code) of ``python -m tui.cli
-    ARGS`` (or ``python -c CODE ARGS``) run from the repository root."""
+    ARGS`` (or ``python -c CODE ARGS``) run from ``where`` with ``where`` as its path
+    (the repository root, or an installed copy)."""
     cmd = [sys.executable, "-c", code, *args] if code else [sys.executable, "-m", "tui.cli", *args]
-    e = dict(os.environ) | {"PYTHONPATH": str(REPO)} | (env or {})
+    e = {k: v for k, v in os.environ.items() if k != "NUMBA_CACHE_DIR"} | {"PYTHONPATH": str(where)} | (env or {})
     t0 = time.perf_counter()
-    proc = subprocess.Popen(cmd, cwd=REPO, env=e, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
+    proc = subprocess.Popen(cmd, cwd=where, env=e, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
     first = proc.stderr.read(1)
     t_first = time.perf_counter() - t0 if first else math.nan
     proc.stderr.read()
@@ -119,6 +124,29 @@ def _process(args: list[str], env: dict | None = None, code: str | None = None) 
 # the first run, as a new user meets it: empty numba cache, empty reference-lamp cache
 _FIRST_RUN = ("import sys, pathlib; import compat.reference_lamp as r; r.CACHE_DIR = pathlib.Path(sys.argv[1]); "
               "from tui.cli import main; sys.exit(main(sys.argv[2:]))")
+
+
+def _install_copy(tmp: Path) -> tuple[float, Path]:
+    """Build the wheel from a copy of the sources as ``pip install .`` does (build
+    isolation; setup.py compiles the simulator into it) and install it, without its
+    dependencies (they are this environment's), into tmp/site: (seconds for both, the
+    site folder)."""
+    import shutil
+
+    src = tmp / "src"
+    src.mkdir()
+    for name in ("loads", "compat", "tui"):
+        shutil.copytree(REPO / name, src / name, ignore=shutil.ignore_patterns("__pycache__"))
+    for name in ("pyproject.toml", "setup.py", "README.md"):
+        shutil.copy(REPO / name, src / name)
+    env = {k: v for k, v in os.environ.items() if k not in ("NUMBA_CACHE_DIR", "DIMFIT_BUILD_COMPILE")}
+    t0 = time.perf_counter()
+    subprocess.run([sys.executable, "-m", "pip", "wheel", "--no-deps", "--quiet", "-w", str(tmp / "dist"), str(src)],
+                   check=True, env=env, capture_output=True)
+    wheel = next((tmp / "dist").glob("dimfit-*.whl"))
+    subprocess.run([sys.executable, "-m", "pip", "install", "--no-deps", "--quiet", "--target", str(tmp / "site"),
+                    str(wheel)], check=True, env=env, capture_output=True)
+    return time.perf_counter() - t0, tmp / "site"
 
 
 def _goal_row(label, ours, goal, note=""):
@@ -256,6 +284,9 @@ def main(argv: list[str] | None = None) -> int:
             first_wall, first_line, _ = _process([str(Path(tmp) / "ref-cache"), "demo", str(Path(tmp) / "d.toml")],
                                                  env={"NUMBA_CACHE_DIR": str(Path(tmp) / "numba-cache")},
                                                  code=_FIRST_RUN)
+            install_s, site = _install_copy(Path(tmp))
+            installed_wall, _, _ = _process([str(Path(tmp) / "ref-cache-2"), "demo", str(Path(tmp) / "d2.toml")],
+                                            code=_FIRST_RUN, where=site)
         proc = [_process(["check", str(demo_file)]) for _ in range(n)]
         proc_wall = statistics.median(p[0] for p in proc)
     if not args.quick:
@@ -269,10 +300,13 @@ def main(argv: list[str] | None = None) -> int:
     _goal_row("what the user does", "ours", "goal")
     print("-" * 116)
     if args.quick:
-        _goal_row("first `dimfit demo` (numba compiles)", "not run (--quick)", "a line at once; ≤ 10 s")
+        _goal_row("first `dimfit demo` after `pip install .`", "not run (--quick)", "≤ 10 s, or compiled at install")
+        _goal_row("first `dimfit demo`, nothing compiled yet", "not run (--quick)", "a line at once")
     else:
-        _goal_row("first `dimfit demo` (numba compiles)", f"{first_wall:.1f} s, line at {first_line:.2f} s",
-                  "a line at once; ≤ 10 s", "fresh process, empty numba and reference-lamp caches")
+        _goal_row("first `dimfit demo` after `pip install .`", f"{installed_wall:.1f} s", "≤ 10 s, or compiled at install",
+                  f"installed copy, empty reference-lamp cache; building and installing took {install_s:.0f} s")
+        _goal_row("first `dimfit demo`, nothing compiled yet", f"{first_wall:.1f} s, line at {first_line:.2f} s",
+                  "a line at once", "editable install or a wheel from another machine: empty numba cache")
     w, c = goals["check"]
     _goal_row("`dimfit check` of the demo, in process (evaluate)", f"{w:.2f} s wall ({c:.2f} s CPU)", "≤ 0.3 s wall",
               f"median of {max(1, n - 1)}")
