@@ -5,7 +5,7 @@ Everything about the package is in pyproject.toml; this file only adds one step 
 ``loads.simulation.compile_ahead`` from there, so numba's cache of the compiled
 integrator lands in ``loads/__pycache__`` beside ``kernel.py`` and ships in the wheel.
 The first ``dimfit`` command after ``pip install .`` then loads it (about a second)
-instead of compiling (15-40 s).  numba checks its cache against this machine's
+instead of compiling (15-60 s).  numba checks its cache against this machine's
 processor, its own version and a hash of the source text, so a wheel taken to another
 kind of machine still works: it compiles on first use, as an install without this
 step does.
@@ -39,7 +39,7 @@ class BuildPyCompiled(build_py):
         for old in glob.glob(os.path.join(self.build_lib, "loads", "__pycache__", "*.nb[ic]")):
             os.remove(old)
         t0 = time.perf_counter()
-        print("dimfit: compiling the simulator into the package (15-40 s)", file=sys.stderr, flush=True)
+        print("dimfit: compiling the simulator into the package (15-60 s)", file=sys.stderr, flush=True)
         result = subprocess.run([sys.executable, "-c", _COMPILE, os.path.abspath(self.build_lib)], env=env,
                                 cwd=self.build_lib, capture_output=True, text=True)
         if result.returncode != 0:

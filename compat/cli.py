@@ -230,15 +230,12 @@ def _fail(message: str) -> int:
     return 2
 
 
-COMPILING = f"{PROG}: compiling the simulator (first run only, 15–40 s)…"
-
-
 def _simulator():
-    """``loads.simulation``, set to print COMPILING on stderr the moment it starts
-    compiling the integrator (a first run only)."""
+    """``loads.simulation``, set to print its COMPILE_NOTICE on stderr the moment it
+    starts compiling the integrator (a first run only)."""
     from loads import simulation
 
-    simulation.compile_notice = lambda: print(COMPILING, file=sys.stderr, flush=True)
+    simulation.compile_notice = lambda: print(f"{PROG}: {simulation.COMPILE_NOTICE}", file=sys.stderr, flush=True)
     return simulation
 
 

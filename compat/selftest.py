@@ -1,7 +1,7 @@
 """``dimfit selftest``: compile the simulator now, and check it on a circuit whose answer
 is known in closed form.
 
-The first simulation in a fresh installation compiles the integrator (numba, 15-40 s,
+The first simulation in a fresh installation compiles the integrator (numba, 15-60 s,
 cached on disk afterwards); this command does it at a time the user chooses (after
 installing, say), and then proves the compiled code right on this machine: a 10 Ω
 resistive load on 120 V 60 Hz, phase-controlled at a 90° firing angle, whose load

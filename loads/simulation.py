@@ -649,13 +649,15 @@ def _settled_et_lamps(circuit: Circuit, pk: _Packed, y: np.ndarray, out: np.ndar
 
 
 # ---------------------------------------------------------------------------
-# The first run: numba compiles the integrator (15-40 s) and caches it on disk
+# The first run: numba compiles the integrator (15-60 s) and caches it on disk
 # ---------------------------------------------------------------------------
 
 # Called once per process, with no argument, just before the first simulation when the
 # compiled integrator is not in numba's cache (a first run, or kernel.py edited): the
 # command line prints a line on stderr, the app shows one.  None: say nothing.
 compile_notice: Callable[[], None] | None = None
+# What the command line (after "dimfit: ") and the app say then.
+COMPILE_NOTICE = "compiling the simulator (first run only, 15–60 s)…"
 _compile_checked = False
 _compile_lock = threading.Lock()
 
@@ -693,7 +695,7 @@ def compile_ahead() -> int:
     (filament and tungsten figures), by simulating each built-in dimmer with every
     built-in lamp kind for one cycle, from cold and from the steady state.  The build
     runs this (setup.py) so that an installed copy carries its compiled code; after
-    that, the first simulation loads it (~1 s) instead of compiling (15-40 s).
+    that, the first simulation loads it (~1 s) instead of compiling (15-60 s).
 
     numba keys its cache on this machine's processor, numba's version and the text of
     the source file (a hash, not the file's time), so a copy installed from a wheel

@@ -34,7 +34,7 @@ the first line on stderr), ``dimfit check`` of the demo in process and as
 a whole process, ``dimfit size`` of the demo, the stiff-supply case (case (c)'s deck
 at 120 V 60 Hz behind 100 µH with a 100 nF input capacitor, per cycle over 400 cycles,
 against ngspice in the same run) and one setting of the demo.  ``--quick`` leaves out
-the first run (15-40 s of compiling) and the sizing.
+the first run (15-60 s of compiling) and the sizing.
 
 No timing is asserted anywhere; numbers on a 2-core machine shared with other work vary
 by ±30 % (``tests/data/spice/README.md``, "Timing noise").

@@ -54,11 +54,20 @@ class DimfitApp(App):
 
     def on_mount(self) -> None:
         from tui.circuit_screen import CircuitScreen
+        self.services.set_notice(self.worker_notice)
         circuit = self._load_circuit()
         self.push_screen(CircuitScreen(circuit, self.initial_path,
                                        self.services))
         if self.startup_problem:
             self.notify(self.startup_problem, severity="warning", timeout=8)
+
+    def worker_notice(self, text: str) -> None:
+        """A notice from the work in progress (the simulator compiling on a first run),
+        shown as a toast while it lasts; called from the thread that waits for the work."""
+        try:
+            self.call_from_thread(self.notify, text, title="First run", timeout=30)
+        except RuntimeError:               # called from the app's own thread
+            self.notify(text, title="First run", timeout=30)
 
     def on_unmount(self) -> None:
         self.services.shutdown()           # the worker process, if one was started

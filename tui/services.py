@@ -42,8 +42,12 @@ class _LazyModule:
 
 
 def _child_call(module: str, name: str, args: tuple, kwargs: dict, queue, cancel, with_progress: bool):
-    """Runs in the worker process: call ``module.name`` and answer through ``queue``."""
+    """Runs in the worker process: call ``module.name`` and answer through ``queue``.
+    Where the call starts the simulator compiling (a first run), a ("notice", text)
+    message says so first."""
     try:
+        from loads import simulation
+        simulation.compile_notice = lambda: queue.put(("notice", simulation.COMPILE_NOTICE))
         function = getattr(importlib.import_module(module), name)
         if with_progress:
             kwargs = dict(kwargs, progress=lambda done, total: queue.put(("progress", done, total)),
@@ -64,12 +68,14 @@ class ProcessRunner:
     The simulator's compiled kernels hold the GIL for seconds at a time, which froze
     the app's input when they ran in a thread; a process keeps the UI responsive.
     Progress and the cancel request cross the boundary through a manager's queue and
-    event.  Started on first use; ``shutdown`` ends it."""
+    event.  Started on first use; ``shutdown`` ends it.  ``notice``, if set, is called
+    with the worker's notices (the simulator compiling), from the calling thread."""
 
     def __init__(self) -> None:
         self._pool = None
         self._manager = None
         self._lock = threading.Lock()
+        self.notice: Callable[[str], None] | None = None
 
     def _ensure(self):
         with self._lock:
@@ -111,6 +117,9 @@ class ProcessRunner:
             if message[0] == "progress":
                 if progress is not None:
                     progress(message[1], message[2])
+            elif message[0] == "notice":
+                if self.notice is not None:
+                    self.notice(message[1])
             elif message[0] == "error":
                 raise {"input": InputError, "import": ImportError}.get(message[1], RuntimeError)(message[2])
             else:
@@ -149,7 +158,9 @@ class Services:
     files: read_circuit, write_circuit, save_profile, list_profiles, read_profile;
     catalogue: list_archetypes, demo_circuit; cautions() -> tuple[str, ...];
     describe: lamp_from_label, dimmer_from_faceplate (compat.describe; None: not offered);
-    diagnose(circuit, symptom, cancel=None) -> str (the text of ``dimfit diagnose``)."""
+    diagnose(circuit, symptom, cancel=None) -> str (the text of ``dimfit diagnose``);
+    set_notice(callback): where the work's notices go (the simulator compiling on a
+    first run), called from the thread that waits for the work."""
 
     evaluate: Callable[..., Any]
     simulate: Callable[..., Any]
@@ -161,6 +172,7 @@ class Services:
     shutdown: Callable[[], None] = lambda: None
     describe: Any = None
     diagnose: Callable[..., str] | None = None
+    set_notice: Callable[[Callable[[str], None]], None] = lambda callback: None
 
 
 def make_services(*, evaluate=None, simulate=None, size=None, render_markdown=None, files=None,
@@ -193,5 +205,6 @@ def make_services(*, evaluate=None, simulate=None, size=None, render_markdown=No
         shutdown=runner.shutdown,
         describe=describe or _LazyModule("compat.describe"),
         diagnose=diagnose or real_diagnose,
+        set_notice=lambda callback: setattr(runner, "notice", callback),
     )
     return services

@@ -83,3 +83,41 @@ def test_compile_notice_once_and_only_when_cold(monkeypatch):
     monkeypatch.setattr(sim, "_integrator_ready", lambda: True)       # cached: say nothing
     sim.simulate(demo_circuit(), setting=0.5, cycles=1, samples_per_cycle=20)
     assert calls == [1]
+
+
+@pytest.mark.regression
+def test_the_app_worker_passes_the_compile_notice_on(monkeypatch):
+    # the app's worker (tui.services) sends the notice ahead of the answer and the
+    # runner hands it to its callback; the worker process is replaced by the same
+    # function run in this thread, with a plain queue and event
+    import queue
+    import threading
+    from concurrent.futures import Future
+
+    from loads.catalogue import demo_circuit
+    from tui.services import ProcessRunner
+
+    class InlinePool:
+        def submit(self, fn, *args):
+            future = Future()
+            future.set_result(fn(*args))
+            return future
+
+    class InlineManager:
+        Queue = staticmethod(queue.Queue)
+        Event = staticmethod(threading.Event)
+
+    monkeypatch.setattr(sim, "compile_notice", None)                  # restored after the test
+    monkeypatch.setattr(sim, "_compile_checked", False)
+    monkeypatch.setattr(sim, "_integrator_ready", lambda: False)      # as on a first run
+    runner = ProcessRunner()
+    monkeypatch.setattr(runner, "_ensure", lambda: (InlinePool(), InlineManager()))
+    seen = []
+    runner.notice = seen.append
+    res = runner.call("loads.simulation", "simulate", demo_circuit(), setting=0.5, cycles=1, samples_per_cycle=20)
+    assert seen == [sim.COMPILE_NOTICE]
+    assert res.half_cycles.start_s.size == 2          # and the answer still comes back
+    monkeypatch.setattr(sim, "_compile_checked", False)
+    monkeypatch.setattr(sim, "_integrator_ready", lambda: True)       # cached: no notice
+    runner.call("loads.simulation", "simulate", demo_circuit(), setting=0.5, cycles=1, samples_per_cycle=20)
+    assert seen == [sim.COMPILE_NOTICE]

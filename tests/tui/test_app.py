@@ -497,3 +497,18 @@ def test_ranges_follow_their_groups_and_go_when_edited_away():
     assert [r.path for r in renumbered(c.ranges, lambda i: i if i < 2 else (None if i == 2 else i - 1))] == [
         "loads[2].bleeder_a", "dimmer.holding_current_a"]
     assert renumbered(c.ranges, lambda i: i + 1)[1].file_key == "loads[4].bleeder_ma"
+
+
+@sync
+async def test_a_notice_from_the_worker_shows_in_the_app():
+    # issue 10: the first run's "compiling" notice reaches the app from the thread that
+    # waits for the worker process (ProcessRunner.notice, set by the app on mount)
+    from loads.simulation import COMPILE_NOTICE
+
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settled(pilot)
+        runner = app.services.shutdown.__self__            # the app's ProcessRunner
+        assert runner.notice == app.worker_notice
+        await asyncio.to_thread(runner.notice, COMPILE_NOTICE)
+        await wait_for(pilot, lambda: any(n.message == COMPILE_NOTICE for n in app._notifications))
