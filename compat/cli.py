@@ -555,6 +555,8 @@ def _open_command(open_app: Callable[[str | None], int | None]) -> Callable[[arg
 
 def build_parser(open_app: Callable[[str | None], int | None] | None = None) -> argparse.ArgumentParser:
     """The command line; with ``open_app``, also ``open FILE`` (see ``_open_command``)."""
+    from compat.symptoms import Symptom      # a light module (no simulator)
+
     parser = _Parser(prog=PROG, description="Will this phase-cut dimmer work, safely, with these lamps?")
     sub = parser.add_subparsers(dest="command", parser_class=_Parser)
 
@@ -598,9 +600,7 @@ def build_parser(open_app: Callable[[str | None], int | None] | None = None) -> 
 
     p = sub.add_parser("diagnose", help="from a symptom seen on site to its likely cause, and a trial plan")
     p.add_argument("file")
-    p.add_argument("--symptom", required=True, metavar="NAME",
-                   help="flicker-low, flicker-all, glow-when-off, flashes-when-off, drops-out, pops-on, dead-travel, "
-                        "buzzing, trips-at-switch-on, runs-hot, lamps-fail-early, stays-bright")
+    p.add_argument("--symptom", required=True, metavar="NAME", help=", ".join(Symptom))
     p.add_argument("--observed", action="append", metavar="KEY=VALUE",
                    help="what was seen or read: steady_down_to, comes_on_at (knob 0-1 or %%), off_voltage_v, "
                         "off_current_a, full_current_a, crest_factor, dc_current_a, trial_lamp_beside (0-1 or %%), "

@@ -1200,19 +1200,20 @@ def cured(m: Mechanism, circuit: Circuit) -> Circuit | None:
 
 def _run_case(label: str, key: str, circuit: Circuit, values: dict, symptom: Symptom, sim, cancel=None) -> Case:
     ev = gather(circuit, settings=DIAGNOSE_SETTINGS, simulator=sim, cancel=cancel)
+    grid = settings_grid(DIAGNOSE_SETTINGS)
     off_paths = {}
     if symptom in (Symptom.GLOW_WHEN_OFF, Symptom.FLASHES_WHEN_OFF):
         off_paths = {m: _off_result(pc, sim) for m, pc in leakage_paths(circuit).items()}
     trial_up = trial_down = ()
     fire_up = fire_down = None
     if symptom in (Symptom.POPS_ON, Symptom.DEAD_TRAVEL):
-        trial, grid = trial_circuit(circuit), settings_grid(DIAGNOSE_SETTINGS)
+        trial = trial_circuit(circuit)
         trial_up = walk(trial, grid, "up", sim, cancel=cancel)
         trial_down = walk(trial, grid, "down", sim, cancel=cancel)
         fire_up, fire_down = firing_thresholds(circuit, ev, sim, cancel)
     beside_down = ()
     if symptom is Symptom.STAYS_BRIGHT:
-        beside_down = tuple(walk(beside_circuit(circuit), settings_grid(DIAGNOSE_SETTINGS), "down", sim, cancel=cancel))
+        beside_down = walk(beside_circuit(circuit), grid, "down", sim, cancel=cancel)
     return Case(label=label, key=key, values=values, evidence=ev, checks={r.id: r for r in judge(ev)},
                 off_paths=off_paths, trial_up=trial_up, trial_down=trial_down, fire_up=fire_up, fire_down=fire_down,
                 beside_down=beside_down)

@@ -93,6 +93,13 @@ def turn(circuit: Circuit, state, direction: str, settings, sim, *, tick=None, c
     return runs
 
 
+def light_weights(circuit: Circuit, sim) -> np.ndarray:
+    """Each group's share of the circuit's reference light (summing to 1; all zeros if
+    no group gives light), as the checks weigh the light of a run [1]."""
+    w = np.asarray(sim.reference_light_weights(circuit), dtype=float)
+    return w / w.sum() if w.sum() > 0 else w
+
+
 def gather(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress=None, cancel=None, simulator=None,
            watch=None) -> Evidence:
     """Every simulation the checks need, for one circuit (no ranges), sweeping
@@ -153,8 +160,7 @@ def gather(circuit: Circuit, *, settings: int = MIN_SETTINGS, progress=None, can
     inrush = tuple(single_out[a] for a in INRUSH_ANGLES_DEG)
     if cancel is not None and cancel.is_set():
         raise Cancelled()
-    w = np.asarray(sim.reference_light_weights(circuit), dtype=float)
-    w = w / w.sum() if w.sum() > 0 else w
+    w = light_weights(circuit, sim)
     fine = harmonics_run(circuit, down + up, sim)
     return Evidence(circuit=circuit, down=down, up=up, inrush=inrush, off=off, light_weights=w,
                     harmonics=(fine,) if fine is not None else (), bottom=bottom)

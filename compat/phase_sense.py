@@ -139,9 +139,11 @@ def with_bleeders(circuit: Circuit) -> tuple[Circuit, dict[str, float]]:
     f = circuit.supply.frequency_hz
     given, loads = {}, []
     for g in circuit.loads:
-        if isinstance(g, ElectronicDriver) and g.dimmable and g.bleeder_a < bleeder_needed_a(g, f):
-            given[g.name] = bleeder_needed_a(g, f)
-            g = dataclasses.replace(g, bleeder_a=given[g.name], bleeder_kind="constant-current")
+        if isinstance(g, ElectronicDriver) and g.dimmable:
+            need = bleeder_needed_a(g, f)
+            if g.bleeder_a < need:
+                given[g.name] = need
+                g = dataclasses.replace(g, bleeder_a=need, bleeder_kind="constant-current")
         loads.append(g)
     return dataclasses.replace(circuit, loads=tuple(loads), ranges=()), given
 

@@ -29,7 +29,8 @@ import numpy as np
 
 from compat import breaker_band, derating, phase_sense
 from compat import checks as ck
-from compat.evaluate import MIN_SETTINGS, TRIM_MAX_SETTING, UNTRIMMED_MAX_SETTING, evaluate, gather, judge
+from compat.evaluate import (MIN_SETTINGS, TRIM_MAX_SETTING, UNTRIMMED_MAX_SETTING, evaluate, gather, judge,
+                             light_weights)
 from compat.report import Status, Verdict
 from compat.runs import Cancelled, SettingRun
 from compat.switch_on import (MAX_COUNT, breaker_max_counts, default_simulator, max_passing, min_passing,
@@ -109,9 +110,7 @@ class _FailureWatch:
     DECIDING = ("flicker", "holding")
 
     def __init__(self, circuit: Circuit, simulator, among, tolerated):
-        sim = simulator or default_simulator()
-        w = np.asarray(sim.reference_light_weights(circuit), dtype=float)
-        self.weights = w / w.sum() if w.sum() > 0 else w          # as ``evaluate.gather`` weighs the light
+        self.weights = light_weights(circuit, simulator or default_simulator())   # as ``gather`` weighs them
         self.circuit = circuit
         self.ids = [cid for cid in self.DECIDING if cid in among and cid not in tolerated]
         self.above = TRIM_MAX_SETTING if circuit.dimmer.low_end_trim else UNTRIMMED_MAX_SETTING

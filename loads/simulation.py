@@ -689,7 +689,7 @@ def _integrator_ready() -> bool:
     return bool(K.run.signatures) or integrator_cached()
 
 
-def compile_ahead() -> int:
+def compile_ahead() -> None:
     """Compile, and leave in numba's on-disk cache, everything a simulation compiles:
     the integrator and the few compiled functions that are also called from Python
     (filament and tungsten figures), by simulating each built-in dimmer with every
@@ -699,21 +699,17 @@ def compile_ahead() -> int:
 
     numba keys its cache on this machine's processor, numba's version and the text of
     the source file (a hash, not the file's time), so a copy installed from a wheel
-    built elsewhere, or a kernel.py edited since, compiles on first use as before.
-    Returns the number of simulations run."""
+    built elsewhere, or a kernel.py edited since, compiles on first use as before."""
     from loads.catalogue import demo_circuit, list_archetypes
 
     demo = demo_circuit()
     lamps = [a.object for a in list_archetypes() if a.kind == "lamp"]
     by_kind = {ld.kind: ld for ld in lamps}            # one group of each lamp kind
-    runs = 0
     for d in (a.object for a in list_archetypes() if a.kind == "dimmer"):
         c = dataclasses.replace(demo, dimmer=d, loads=tuple(by_kind.values()))
         for start in (Start.COLD, Start.STEADY):
             simulate(c, setting=0.5, cycles=1, start=start, samples_per_cycle=40)
-            runs += 1
     simulate(demo, setting=0.5, cycles=1, start=Start.OFF, settle_lamps=True, samples_per_cycle=40)
-    return runs + 1
 
 
 def simulate(circuit: Circuit, *, setting: float | None = None, firing_angle_deg: float | None = None,

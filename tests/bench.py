@@ -131,21 +131,12 @@ def _install_copy(tmp: Path) -> tuple[float, Path]:
     isolation; setup.py compiles the simulator into it) and install it, without its
     dependencies (they are this environment's), into tmp/site: (seconds for both, the
     site folder)."""
-    import shutil
+    from tests.wheel import build_wheel, install_wheel
 
-    src = tmp / "src"
-    src.mkdir()
-    for name in ("loads", "compat", "tui"):
-        shutil.copytree(REPO / name, src / name, ignore=shutil.ignore_patterns("__pycache__"))
-    for name in ("pyproject.toml", "setup.py", "README.md"):
-        shutil.copy(REPO / name, src / name)
-    env = {k: v for k, v in os.environ.items() if k not in ("NUMBA_CACHE_DIR", "DIMFIT_BUILD_COMPILE")}
     t0 = time.perf_counter()
-    subprocess.run([sys.executable, "-m", "pip", "wheel", "--no-deps", "--quiet", "-w", str(tmp / "dist"), str(src)],
-                   check=True, env=env, capture_output=True)
-    wheel = next((tmp / "dist").glob("dimfit-*.whl"))
-    subprocess.run([sys.executable, "-m", "pip", "install", "--no-deps", "--quiet", "--target", str(tmp / "site"),
-                    str(wheel)], check=True, env=env, capture_output=True)
+    built, dist = build_wheel(tmp)
+    built.check_returncode()
+    install_wheel(next(dist.glob("dimfit-*.whl")), tmp / "site").check_returncode()
     return time.perf_counter() - t0, tmp / "site"
 
 

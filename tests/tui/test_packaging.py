@@ -2,13 +2,14 @@
 pull in the heavy modules."""
 import json
 import os
-import shutil
 import subprocess
 import sys
 import zipfile
 from pathlib import Path
 
 import pytest
+
+from tests.wheel import build_wheel, install_wheel
 
 ROOT = Path(__file__).resolve().parents[2]
 
@@ -17,21 +18,7 @@ ROOT = Path(__file__).resolve().parents[2]
 def wheel(tmp_path_factory):
     """The wheel built from a copy of the sources, as ``pip install .`` builds it (with
     build isolation: the build step compiles the simulator into it, setup.py)."""
-    tmp = tmp_path_factory.mktemp("wheel")
-    source = tmp / "src"
-    source.mkdir()
-    for name in ("loads", "compat", "tui"):
-        shutil.copytree(ROOT / name, source / name, ignore=shutil.ignore_patterns("__pycache__"))
-    for name in ("pyproject.toml", "setup.py", "README.md", "LICENSE"):
-        if (ROOT / name).exists():
-            shutil.copy(ROOT / name, source / name)
-    if not (source / "README.md").exists():      # pyproject names it; the copy needs one to build
-        (source / "README.md").write_text("placeholder for the packaging test\n")
-    out = tmp / "dist"
-    # a copy, so that the build leaves no build/ or egg-info in the shared tree
-    env = {k: v for k, v in os.environ.items() if k not in ("NUMBA_CACHE_DIR", "DIMFIT_BUILD_COMPILE")}
-    result = subprocess.run([sys.executable, "-m", "pip", "wheel", "--no-deps", "--quiet", "-w", str(out),
-                             str(source)], capture_output=True, text=True, timeout=900, env=env)
+    result, out = build_wheel(tmp_path_factory.mktemp("wheel"))
     assert result.returncode == 0, result.stderr[-2000:]
     return next(out.glob("dimfit-*.whl"))
 
@@ -58,8 +45,7 @@ def test_an_installed_copy_runs_without_compiling(wheel, tmp_path):
     names = zipfile.ZipFile(wheel).namelist()
     assert any(n.startswith("loads/__pycache__/kernel.run-") and n.endswith(".nbi") for n in names)
     site = tmp_path / "site"
-    result = subprocess.run([sys.executable, "-m", "pip", "install", "--no-deps", "--quiet", "--target", str(site),
-                             str(wheel)], capture_output=True, text=True, timeout=300)
+    result = install_wheel(wheel, site)
     assert result.returncode == 0, result.stderr[-2000:]
     env = {k: v for k, v in os.environ.items() if k != "NUMBA_CACHE_DIR"} | {
         "PYTHONPATH": str(site), "NUMBA_DEBUG_CACHE": "1"}
