@@ -116,7 +116,7 @@ def test_the_app_worker_passes_the_compile_notice_on(monkeypatch):
     runner.notice = seen.append
     res = runner.call("loads.simulation", "simulate", demo_circuit(), setting=0.5, cycles=1, samples_per_cycle=20)
     assert seen == [sim.COMPILE_NOTICE]
-    assert res.half_cycles.start_s.size == 2          # and the answer still comes back
+    assert res.half_cycles.start_s.size == 2          # and the answer still comes back: one cycle, two half-cycles
     monkeypatch.setattr(sim, "_compile_checked", False)
     monkeypatch.setattr(sim, "_integrator_ready", lambda: True)       # cached: no notice
     runner.call("loads.simulation", "simulate", demo_circuit(), setting=0.5, cycles=1, samples_per_cycle=20)
